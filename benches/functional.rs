@@ -1,0 +1,2 @@
+//! placeholder until the bench lands
+fn main() {}

@@ -1,0 +1,16 @@
+//! The RV64IM instruction set for overlap: decoded instructions, a 32-bit
+//! decoder and encoder, an assembler for `.s` text, and the functional model
+//! that executes a program and yields its stream of dynamic instructions.
+//!
+//! Invariants: this crate knows nothing of time. It decides *what* a program
+//! does; the timing core decides *when*. The functional model is the oracle:
+//! every [`DynInst`] it yields is architecturally exact.
+#![deny(missing_docs)]
+
+pub mod dyninst;
+pub mod inst;
+pub mod program;
+
+pub use dyninst::DynInst;
+pub use inst::{Inst, Op, OpClass, Reg};
+pub use program::{Program, Segment};

@@ -1,0 +1,2 @@
+//! `overlap`: the command line.
+fn main() {}
