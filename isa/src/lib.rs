@@ -7,10 +7,20 @@
 //! every [`DynInst`] it yields is architecturally exact.
 #![deny(missing_docs)]
 
+pub mod asm;
+pub mod decode;
 pub mod dyninst;
+pub mod encode;
 pub mod inst;
+pub mod machine;
+pub mod memory;
 pub mod program;
 
+pub use asm::{AsmError, AsmErrors, assemble};
+pub use decode::{DecodeError, decode};
 pub use dyninst::DynInst;
-pub use inst::{Inst, Op, OpClass, Reg};
+pub use encode::{ImmError, check_imm, encode};
+pub use inst::{Format, Inst, Op, OpClass, Reg};
+pub use machine::{ExecError, Machine, MachineConfig};
+pub use memory::{MemError, Memory};
 pub use program::{Program, Segment};
