@@ -1,0 +1,304 @@
+//! The load/store queue and the memory stage.
+//!
+//! Loads and stores take an entry at dispatch, in program order. Per cycle the
+//! memory stage (a) lets each load whose address is ready either take its
+//! data from the youngest older store that covers it (forwarding), wait for an
+//! older store that overlaps it only partly to write the cache, or access the
+//! L1D, retrying after a refusal once the memory side has changed; and (b)
+//! sends the oldest committed store to the L1D. A load's entry is freed when it
+//! retires; a store's entry only once it has written the cache.
+
+use crate::observer::{Observer, StructSet};
+use crate::pipeline::{Pipeline, Structure};
+use crate::rob::NOT_YET;
+use overlap_mem::{AccessKind, AccessOutcome, Level, Refusal, Request};
+
+/// Where a load is in its life.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub(crate) enum LoadState {
+    /// In a station, not issued.
+    Waiting,
+    /// Address generation finishes at this cycle; then the access.
+    Agu(u64),
+    /// Must access the cache at the next opportunity.
+    Access,
+    /// Refused by the L1D; retries when the memory side changes (`stamp` differs).
+    Refused(Refusal, u64),
+    /// Waits for the older store with this index to write the cache.
+    StoreWrite(u64),
+    /// Data comes from an older store.
+    Forwarded,
+    /// Accepted by the cache; data comes from this level.
+    InFlight(Level),
+}
+
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct LoadEntry {
+    pub seq: u64,
+    pub addr: u64,
+    pub size: u8,
+    pub pc: u64,
+    /// Stores with a smaller index are older than this load.
+    pub older_stores: u64,
+    pub state: LoadState,
+}
+
+#[derive(Clone, Copy, Debug)]
+pub(crate) struct StoreEntry {
+    pub seq: u64,
+    pub addr: u64,
+    pub size: u8,
+    pub pc: u64,
+    /// Cycle at which address and data are known (`NOT_YET` before issue).
+    pub addr_at: u64,
+    /// Cycle at which the cache has the data (`NOT_YET` until known).
+    pub written_at: u64,
+    /// Refused by the L1D when sent; retries when the memory side changes.
+    pub refused: Option<(Refusal, u64)>,
+    /// Coalesced into the in-flight write of this (older) store to the same line.
+    pub merged_into: Option<u64>,
+}
+
+/// A fixed-capacity ring addressed by a global index that only grows.
+#[derive(Debug)]
+pub(crate) struct Ring<T> {
+    slots: Vec<Option<T>>,
+    pub head: u64,
+    pub tail: u64,
+}
+
+impl<T: Copy> Ring<T> {
+    pub(crate) fn new(capacity: usize) -> Ring<T> {
+        Ring {
+            slots: vec![None; capacity],
+            head: 0,
+            tail: 0,
+        }
+    }
+    pub(crate) fn len(&self) -> usize {
+        (self.tail - self.head) as usize
+    }
+    pub(crate) fn is_full(&self) -> bool {
+        self.len() == self.slots.len()
+    }
+    pub(crate) fn push(&mut self, v: T) -> u64 {
+        debug_assert!(!self.is_full());
+        let i = self.tail;
+        let n = self.slots.len() as u64;
+        self.slots[(i % n) as usize] = Some(v);
+        self.tail += 1;
+        i
+    }
+    pub(crate) fn pop(&mut self) {
+        let n = self.slots.len() as u64;
+        self.slots[(self.head % n) as usize] = None;
+        self.head += 1;
+    }
+    pub(crate) fn get(&self, i: u64) -> &T {
+        let n = self.slots.len() as u64;
+        self.slots[(i % n) as usize]
+            .as_ref()
+            .expect("live queue entry")
+    }
+    pub(crate) fn get_mut(&mut self, i: u64) -> &mut T {
+        let n = self.slots.len() as u64;
+        self.slots[(i % n) as usize]
+            .as_mut()
+            .expect("live queue entry")
+    }
+}
+
+/// The store queue with its commit and send pointers:
+/// `head <= sent <= committed <= tail`.
+#[derive(Debug)]
+pub(crate) struct StoreQueue {
+    pub ring: Ring<StoreEntry>,
+    /// Stores below this index have retired.
+    pub committed: u64,
+    /// Stores below this index have been accepted by the cache.
+    pub sent: u64,
+}
+
+fn overlaps(a: u64, asz: u8, b: u64, bsz: u8) -> bool {
+    a < b + u64::from(bsz) && b < a + u64::from(asz)
+}
+
+fn covers(store: u64, ssz: u8, load: u64, lsz: u8) -> bool {
+    store <= load && load + u64::from(lsz) <= store + u64::from(ssz)
+}
+
+impl<O: Observer> Pipeline<'_, O> {
+    /// Whether disambiguation lets the load with queue index `li` issue at `now`.
+    pub(crate) fn load_may_issue(&self, li: u64, now: u64) -> bool {
+        let load = self.lq.get(li);
+        let perfect = self.cfg.core.disambiguation == crate::config::Disambiguation::Perfect;
+        (self.sq.ring.head..load.older_stores).all(|si| {
+            let s = self.sq.ring.get(si);
+            s.addr_at <= now || (perfect && !overlaps(s.addr, s.size, load.addr, load.size))
+        })
+    }
+
+    /// Free store-queue entries whose data has reached the cache.
+    pub(crate) fn retire_written_stores(&mut self, now: u64) {
+        while self.sq.ring.head < self.sq.sent
+            && self.sq.ring.get(self.sq.ring.head).written_at <= now
+        {
+            self.sq.ring.pop();
+            self.active = true;
+        }
+    }
+
+    /// The memory stage: loads access the L1D (or forward), then the oldest
+    /// committed store is sent.
+    pub(crate) fn memory_stage(&mut self, now: u64) {
+        let mut i = 0;
+        while i < self.pending_loads.len() {
+            let li = self.pending_loads[i];
+            if self.try_load(li, now) {
+                self.pending_loads.remove(i);
+            } else {
+                i += 1;
+            }
+        }
+        self.send_store(now);
+    }
+
+    /// Try to make progress on one load; true when it no longer needs the stage.
+    fn try_load(&mut self, li: u64, now: u64) -> bool {
+        let load = *self.lq.get(li);
+        match load.state {
+            LoadState::Agu(at) if at > now => return false,
+            LoadState::Refused(_, stamp) if stamp == self.mem_gen => return false,
+            LoadState::StoreWrite(si) if self.sq.ring.head <= si => return false,
+            LoadState::Agu(_) | LoadState::Access | LoadState::Refused(..) => {
+                // Youngest older store that overlaps decides forwarding.
+                for si in (self.sq.ring.head..load.older_stores).rev() {
+                    let s = self.sq.ring.get(si);
+                    if !overlaps(s.addr, s.size, load.addr, load.size) {
+                        continue;
+                    }
+                    debug_assert!(
+                        s.addr_at <= now,
+                        "disambiguation let a load pass an unknown store"
+                    );
+                    if covers(s.addr, s.size, load.addr, load.size) && s.addr_at <= now {
+                        let ready = now + u64::from(self.cfg.core.forward_cycles);
+                        self.lq.get_mut(li).state = LoadState::Forwarded;
+                        self.finish(load.seq, ready);
+                    } else {
+                        self.lq.get_mut(li).state = LoadState::StoreWrite(si);
+                        self.active = true;
+                        return false;
+                    }
+                    return true;
+                }
+            }
+            LoadState::StoreWrite(_) => {}
+            LoadState::Waiting | LoadState::Forwarded | LoadState::InFlight(_) => return true,
+        }
+        let req = Request {
+            id: load.seq,
+            kind: AccessKind::Load,
+            addr: load.addr,
+            size: load.size,
+            pc: load.pc,
+        };
+        match self.mem.access(now, req) {
+            Ok(acc) => {
+                self.mem_gen += 1;
+                self.active = true;
+                self.lq.get_mut(li).state = LoadState::InFlight(acc.source);
+                if let Some(ready) = acc.ready_at {
+                    self.finish(load.seq, ready);
+                }
+                debug_assert!(acc.ready_at.is_some() || acc.outcome != AccessOutcome::Hit);
+                true
+            }
+            Err(why) => {
+                self.obs.refusal(now, load.seq, why);
+                let state = if why == Refusal::PortsBusy {
+                    LoadState::Access
+                } else {
+                    LoadState::Refused(why, self.mem_gen)
+                };
+                if self.lq.get(li).state != state {
+                    self.active = true;
+                }
+                self.lq.get_mut(li).state = state;
+                false
+            }
+        }
+    }
+
+    fn send_store(&mut self, now: u64) {
+        if self.sq.sent >= self.sq.committed {
+            return;
+        }
+        let si = self.sq.sent;
+        let s = *self.sq.ring.get(si);
+        if let Some((_, stamp)) = s.refused
+            && stamp == self.mem_gen
+        {
+            return;
+        }
+        let req = Request {
+            id: s.seq,
+            kind: AccessKind::Store,
+            addr: s.addr,
+            size: s.size,
+            pc: s.pc,
+        };
+        match self.mem.access(now, req) {
+            Ok(acc) => {
+                self.mem_gen += 1;
+                self.active = true;
+                let e = self.sq.ring.get_mut(si);
+                e.refused = None;
+                e.written_at = acc.ready_at.unwrap_or(NOT_YET);
+                self.sq.sent += 1;
+            }
+            Err(why) => {
+                self.obs.refusal(now, s.seq, why);
+                if why != Refusal::PortsBusy {
+                    let e = self.sq.ring.get_mut(si);
+                    if e.refused.map(|r| r.0) != Some(why) {
+                        self.active = true;
+                    }
+                    e.refused = Some((why, self.mem_gen));
+                }
+            }
+        }
+    }
+
+    /// A store's write reached the cache (a miss completed).
+    pub(crate) fn store_written(&mut self, seq: u64, cycle: u64) {
+        for si in self.sq.ring.head..self.sq.sent {
+            let e = self.sq.ring.get_mut(si);
+            if e.seq == seq || e.merged_into == Some(seq) {
+                e.written_at = cycle;
+            }
+        }
+    }
+
+    /// Structures that a waiting memory request is held up by: the loads and
+    /// the store that were refused and have not been accepted since.
+    pub(crate) fn memory_refusals(&self) -> StructSet {
+        let mut set = StructSet::EMPTY;
+        let mut note = |why: Refusal| match why {
+            Refusal::Locked => set.insert(Structure::LOCKUP),
+            Refusal::MshrsBusy | Refusal::TargetsFull => set.insert(Structure::MSHR),
+            Refusal::PortsBusy => {}
+        };
+        for &li in &self.pending_loads {
+            if let LoadState::Refused(why, _) = self.lq.get(li).state {
+                note(why);
+            }
+        }
+        if self.sq.sent < self.sq.committed
+            && let Some((why, _)) = self.sq.ring.get(self.sq.sent).refused
+        {
+            note(why);
+        }
+        set
+    }
+}
