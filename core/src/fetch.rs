@@ -176,7 +176,6 @@ impl<O: Observer> Pipeline<'_, O> {
                     match self.mem.access(now, req) {
                         Ok(acc) => {
                             self.front.fetch_ids += 1;
-                            self.mem_gen += 1;
                             self.active = true;
                             self.front.line = line;
                             if acc.outcome != AccessOutcome::Hit {

@@ -60,17 +60,25 @@ pub(crate) struct StoreEntry {
 }
 
 /// A fixed-capacity ring addressed by a global index that only grows.
+///
+/// The slot array is a power of two long, so an index maps to its slot with a
+/// mask; the configured capacity bounds how many entries are live.
 #[derive(Debug)]
 pub(crate) struct Ring<T> {
     slots: Vec<Option<T>>,
+    mask: u64,
+    capacity: usize,
     pub head: u64,
     pub tail: u64,
 }
 
 impl<T: Copy> Ring<T> {
     pub(crate) fn new(capacity: usize) -> Ring<T> {
+        let n = capacity.next_power_of_two();
         Ring {
-            slots: vec![None; capacity],
+            slots: vec![None; n],
+            mask: n as u64 - 1,
+            capacity,
             head: 0,
             tail: 0,
         }
@@ -79,30 +87,26 @@ impl<T: Copy> Ring<T> {
         (self.tail - self.head) as usize
     }
     pub(crate) fn is_full(&self) -> bool {
-        self.len() == self.slots.len()
+        self.len() == self.capacity
     }
     pub(crate) fn push(&mut self, v: T) -> u64 {
         debug_assert!(!self.is_full());
         let i = self.tail;
-        let n = self.slots.len() as u64;
-        self.slots[(i % n) as usize] = Some(v);
+        self.slots[(i & self.mask) as usize] = Some(v);
         self.tail += 1;
         i
     }
     pub(crate) fn pop(&mut self) {
-        let n = self.slots.len() as u64;
-        self.slots[(self.head % n) as usize] = None;
+        self.slots[(self.head & self.mask) as usize] = None;
         self.head += 1;
     }
     pub(crate) fn get(&self, i: u64) -> &T {
-        let n = self.slots.len() as u64;
-        self.slots[(i % n) as usize]
+        self.slots[(i & self.mask) as usize]
             .as_ref()
             .expect("live queue entry")
     }
     pub(crate) fn get_mut(&mut self, i: u64) -> &mut T {
-        let n = self.slots.len() as u64;
-        self.slots[(i % n) as usize]
+        self.slots[(i & self.mask) as usize]
             .as_mut()
             .expect("live queue entry")
     }
@@ -117,6 +121,15 @@ pub(crate) struct StoreQueue {
     pub committed: u64,
     /// Stores below this index have been accepted by the cache.
     pub sent: u64,
+}
+
+/// The structure a refusal charges: a locked cache or the miss registers.
+fn note_refusal(set: &mut StructSet, why: Refusal) {
+    match why {
+        Refusal::Locked => set.insert(Structure::LOCKUP),
+        Refusal::MshrsBusy | Refusal::TargetsFull => set.insert(Structure::MSHR),
+        Refusal::PortsBusy => {}
+    }
 }
 
 fn overlaps(a: u64, asz: u8, b: u64, bsz: u8) -> bool {
@@ -151,16 +164,26 @@ impl<O: Observer> Pipeline<'_, O> {
     /// The memory stage: loads access the L1D (or forward), then the oldest
     /// committed store is sent.
     pub(crate) fn memory_stage(&mut self, now: u64) {
+        let mut waiting = StructSet::EMPTY;
         let mut i = 0;
         while i < self.pending_loads.len() {
             let li = self.pending_loads[i];
             if self.try_load(li, now) {
                 self.pending_loads.remove(i);
             } else {
+                if let LoadState::Refused(why, _) = self.lq.get(li).state {
+                    note_refusal(&mut waiting, why);
+                }
                 i += 1;
             }
         }
         self.send_store(now);
+        if self.sq.sent < self.sq.committed
+            && let Some((why, _)) = self.sq.ring.get(self.sq.sent).refused
+        {
+            note_refusal(&mut waiting, why);
+        }
+        self.mem_waiting = waiting;
     }
 
     /// Try to make progress on one load; true when it no longer needs the stage.
@@ -205,7 +228,6 @@ impl<O: Observer> Pipeline<'_, O> {
         };
         match self.mem.access(now, req) {
             Ok(acc) => {
-                self.mem_gen += 1;
                 self.active = true;
                 self.lq.get_mut(li).state = LoadState::InFlight(acc.source);
                 if let Some(ready) = acc.ready_at {
@@ -250,7 +272,6 @@ impl<O: Observer> Pipeline<'_, O> {
         };
         match self.mem.access(now, req) {
             Ok(acc) => {
-                self.mem_gen += 1;
                 self.active = true;
                 let e = self.sq.ring.get_mut(si);
                 e.refused = None;
@@ -278,27 +299,5 @@ impl<O: Observer> Pipeline<'_, O> {
                 e.written_at = cycle;
             }
         }
-    }
-
-    /// Structures that a waiting memory request is held up by: the loads and
-    /// the store that were refused and have not been accepted since.
-    pub(crate) fn memory_refusals(&self) -> StructSet {
-        let mut set = StructSet::EMPTY;
-        let mut note = |why: Refusal| match why {
-            Refusal::Locked => set.insert(Structure::LOCKUP),
-            Refusal::MshrsBusy | Refusal::TargetsFull => set.insert(Structure::MSHR),
-            Refusal::PortsBusy => {}
-        };
-        for &li in &self.pending_loads {
-            if let LoadState::Refused(why, _) = self.lq.get(li).state {
-                note(why);
-            }
-        }
-        if self.sq.sent < self.sq.committed
-            && let Some((why, _)) = self.sq.ring.get(self.sq.sent).refused
-        {
-            note(why);
-        }
-        set
     }
 }

@@ -76,6 +76,8 @@ pub(crate) struct Pipeline<'a, O: Observer> {
     pub active: bool,
     /// Structures that refused dispatch this cycle.
     pub refused: StructSet,
+    /// Structures that loads or the oldest committed store wait for after a refusal.
+    pub mem_waiting: StructSet,
     pub commits: u32,
     pub retired: u64,
     pub last_commit: u64,
@@ -136,6 +138,7 @@ impl<'a, O: Observer> Pipeline<'a, O> {
             mem_gen: 0,
             active: false,
             refused: StructSet::EMPTY,
+            mem_waiting: StructSet::EMPTY,
             commits: 0,
             retired: 0,
             last_commit: 0,
@@ -366,7 +369,7 @@ impl<'a, O: Observer> Pipeline<'a, O> {
     /// The end-of-cycle summary for the observers.
     fn summary(&self, now: u64) -> CycleState {
         let mut refusing = self.refused;
-        refusing.0 |= self.memory_refusals().0;
+        refusing.0 |= self.mem_waiting.0;
         let mut has_free = StructSet::EMPTY;
         if !self.mem.is_locked(CacheId::L1d) {
             has_free.insert(Structure::LOCKUP);

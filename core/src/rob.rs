@@ -3,7 +3,7 @@
 //!
 //! Per cycle, dispatch appends at the tail and commit removes from the head;
 //! issue and completion update entries in place. Entries are addressed by
-//! sequence number (`seq % capacity`), which works because sequence numbers
+//! sequence number (masked to the slot array), which works because sequence numbers
 //! are handed out in program order and no wrong-path instruction ever enters.
 
 use crate::rename::{NO_REG, PhysReg};
@@ -50,15 +50,21 @@ impl RobEntry {
 /// The reorder buffer.
 #[derive(Debug)]
 pub(crate) struct Rob {
+    /// A power of two long; `capacity` bounds the live entries.
     slots: Vec<Option<RobEntry>>,
+    mask: u64,
+    capacity: usize,
     head_seq: u64,
     len: usize,
 }
 
 impl Rob {
     pub(crate) fn new(capacity: usize) -> Rob {
+        let n = capacity.next_power_of_two();
         Rob {
-            slots: vec![None; capacity],
+            slots: vec![None; n],
+            mask: n as u64 - 1,
+            capacity,
             head_seq: 0,
             len: 0,
         }
@@ -69,11 +75,11 @@ impl Rob {
     }
 
     pub(crate) fn is_full(&self) -> bool {
-        self.len == self.slots.len()
+        self.len == self.capacity
     }
 
     fn slot(&self, seq: u64) -> usize {
-        (seq % self.slots.len() as u64) as usize
+        (seq & self.mask) as usize
     }
 
     /// Append the next instruction in program order.
