@@ -247,3 +247,24 @@ fn access_without_advance_sees_the_same_state() {
     assert_eq!(out.len(), 1);
     assert_eq!((a, out, stats), run(true));
 }
+
+#[test]
+fn reset_stats_keeps_the_state_and_counts_afresh() {
+    // After a reset the counters start from zero, while the caches keep their lines:
+    // a line loaded before the reset hits after it, and only post-reset cycles are counted.
+    let mut mem = overlap_mem::Hierarchy::new(&HierarchyConfig::default()).unwrap();
+    mem.access(0, load(1, 0x8000)).unwrap();
+    let mut done = Vec::new();
+    while let Some(t) = mem.next_event() {
+        mem.advance(t, &mut done);
+    }
+    let t = mem.now();
+    mem.reset_stats(t);
+    let hit = mem.access(t, load(2, 0x8008)).unwrap();
+    assert_eq!(hit.outcome, AccessOutcome::Hit);
+    let s = mem.stats(t + 10);
+    assert_eq!((s.l1d.accesses, s.l1d.hits, s.l1d.misses), (1, 1, 0));
+    assert_eq!(s.dram.reads, 0);
+    assert_eq!(s.l1d.outstanding_hist.iter().sum::<u64>(), 10);
+    assert_eq!(s.dram.busy_cycles, 0);
+}
