@@ -84,6 +84,7 @@ impl<O: Observer> Pipeline<'_, O> {
                         size: d.mem_size,
                         pc: d.pc,
                         addr_at: NOT_YET,
+                        data_at: NOT_YET,
                         written_at: NOT_YET,
                         refused: None,
                         merged_into: None,
@@ -93,9 +94,15 @@ impl<O: Observer> Pipeline<'_, O> {
             }
             self.rob.push(e);
             let s = station.expect("station checked") as usize;
+            // A store issues on its address operand; its data may come later.
+            let issue_srcs = if d.class == OpClass::Store {
+                [srcs[0], crate::rename::NO_REG]
+            } else {
+                srcs
+            };
             self.stations[s].entries.push(StationEntry {
                 seq: f.seq,
-                srcs,
+                srcs: issue_srcs,
                 unit: UnitKind::for_class(d.class),
                 class: d.class,
             });

@@ -26,6 +26,8 @@ pub(crate) enum LoadState {
     Refused(Refusal, u64),
     /// Waits for the older store with this index to write the cache.
     StoreWrite(u64),
+    /// Waits for the data of the older store with this index, to forward it.
+    StoreData(u64),
     /// Data comes from an older store.
     Forwarded,
     /// Accepted by the cache; data comes from this level.
@@ -49,8 +51,10 @@ pub(crate) struct StoreEntry {
     pub addr: u64,
     pub size: u8,
     pub pc: u64,
-    /// Cycle at which address and data are known (`NOT_YET` before issue).
+    /// Cycle at which the address is known (`NOT_YET` before issue).
     pub addr_at: u64,
+    /// Cycle at which the data is known (`NOT_YET` until its producer has issued).
+    pub data_at: u64,
     /// Cycle at which the cache has the data (`NOT_YET` until known).
     pub written_at: u64,
     /// Refused by the L1D when sent; retries when the memory side changes.
@@ -164,6 +168,7 @@ impl<O: Observer> Pipeline<'_, O> {
     /// The memory stage: loads access the L1D (or forward), then the oldest
     /// committed store is sent.
     pub(crate) fn memory_stage(&mut self, now: u64) {
+        self.resolve_store_data();
         let mut waiting = StructSet::EMPTY;
         let mut i = 0;
         while i < self.pending_loads.len() {
@@ -186,6 +191,27 @@ impl<O: Observer> Pipeline<'_, O> {
         self.mem_waiting = waiting;
     }
 
+    /// Stores whose address is generated complete once the time their data is
+    /// ready is known (its producer has issued, or its load has its data).
+    fn resolve_store_data(&mut self) {
+        let mut i = 0;
+        while i < self.pending_store_data.len() {
+            let seq = self.pending_store_data[i];
+            let e = self.rob.get(seq);
+            let ready = self.rename.ready_at(e.srcs[1]);
+            if ready == NOT_YET {
+                i += 1;
+                continue;
+            }
+            let si = e.lsq;
+            let s = self.sq.ring.get_mut(si);
+            s.data_at = ready;
+            let done = ready.max(s.addr_at);
+            self.pending_store_data.swap_remove(i);
+            self.finish(seq, done);
+        }
+    }
+
     /// Try to make progress on one load; true when it no longer needs the stage.
     fn try_load(&mut self, li: u64, now: u64) -> bool {
         let load = *self.lq.get(li);
@@ -193,10 +219,20 @@ impl<O: Observer> Pipeline<'_, O> {
             LoadState::Agu(at) if at > now => return false,
             LoadState::Refused(_, stamp) if stamp == self.mem_gen => return false,
             LoadState::StoreWrite(si) if self.sq.ring.head <= si => return false,
-            LoadState::Agu(_) | LoadState::Access | LoadState::Refused(..) => {
-                // Youngest older store that overlaps decides forwarding.
+            LoadState::StoreData(si)
+                if self.sq.ring.head <= si && self.sq.ring.get(si).data_at > now =>
+            {
+                return false;
+            }
+            LoadState::Agu(_)
+            | LoadState::Access
+            | LoadState::Refused(..)
+            | LoadState::StoreData(_) => {
+                // The youngest older store that overlaps decides: it forwards when it
+                // covers the load and its data is there, it makes the load wait for its
+                // data when it covers it, and for its write to the cache otherwise.
                 for si in (self.sq.ring.head..load.older_stores).rev() {
-                    let s = self.sq.ring.get(si);
+                    let s = *self.sq.ring.get(si);
                     if !overlaps(s.addr, s.size, load.addr, load.size) {
                         continue;
                     }
@@ -204,16 +240,21 @@ impl<O: Observer> Pipeline<'_, O> {
                         s.addr_at <= now,
                         "disambiguation let a load pass an unknown store"
                     );
-                    if covers(s.addr, s.size, load.addr, load.size) && s.addr_at <= now {
+                    let state = if !covers(s.addr, s.size, load.addr, load.size) {
+                        LoadState::StoreWrite(si)
+                    } else if s.data_at <= now {
                         let ready = now + u64::from(self.cfg.core.forward_cycles);
                         self.lq.get_mut(li).state = LoadState::Forwarded;
                         self.finish(load.seq, ready);
+                        return true;
                     } else {
-                        self.lq.get_mut(li).state = LoadState::StoreWrite(si);
+                        LoadState::StoreData(si)
+                    };
+                    if self.lq.get(li).state != state {
+                        self.lq.get_mut(li).state = state;
                         self.active = true;
-                        return false;
                     }
-                    return true;
+                    return false;
                 }
             }
             LoadState::StoreWrite(_) => {}

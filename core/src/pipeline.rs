@@ -67,6 +67,8 @@ pub(crate) struct Pipeline<'a, O: Observer> {
     pub sq: StoreQueue,
     /// Loads that issued and still need the memory stage, oldest first.
     pub pending_loads: Vec<u64>,
+    /// Stores whose address is generated but whose data's ready time is unknown.
+    pub pending_store_data: Vec<u64>,
     /// Structure ids of the register file and the ROB.
     pub regs_id: StructureId,
     pub rob_id: StructureId,
@@ -133,6 +135,7 @@ impl<'a, O: Observer> Pipeline<'a, O> {
                 sent: 0,
             },
             pending_loads: Vec::with_capacity(core.lq_entries as usize),
+            pending_store_data: Vec::with_capacity(core.sq_entries as usize),
             regs_id: Structure::FIRST_STATION + n_stations,
             rob_id: Structure::FIRST_STATION + n_stations + 1,
             mem_gen: 0,
@@ -312,8 +315,17 @@ impl<'a, O: Observer> Pipeline<'a, O> {
                 self.pending_loads.insert(pos, lsq);
             }
             UnitKind::Store => {
-                self.sq.ring.get_mut(lsq).addr_at = done;
-                self.finish(seq, done);
+                // The address is ready at `done`; the store completes when its data is.
+                let data = self.rob.get(seq).srcs[1];
+                let ready = self.rename.ready_at(data);
+                let s = self.sq.ring.get_mut(lsq);
+                s.addr_at = done;
+                if ready == NOT_YET {
+                    self.pending_store_data.push(seq);
+                } else {
+                    s.data_at = ready;
+                    self.finish(seq, done.max(ready));
+                }
             }
             _ => {
                 self.finish(seq, done);
@@ -346,7 +358,9 @@ impl<'a, O: Observer> Pipeline<'a, O> {
                 LoadState::Agu(_) | LoadState::Access => Waiting::Agu,
                 LoadState::Refused(overlap_mem::Refusal::Locked, _) => Waiting::LoadLockup,
                 LoadState::Refused(..) => Waiting::LoadMshr,
-                LoadState::StoreWrite(_) | LoadState::Forwarded => Waiting::LoadStore,
+                LoadState::StoreWrite(_) | LoadState::StoreData(_) | LoadState::Forwarded => {
+                    Waiting::LoadStore
+                }
                 LoadState::InFlight(level) => Waiting::load_from(level),
             };
         }
@@ -362,6 +376,7 @@ impl<'a, O: Observer> Pipeline<'a, O> {
             UnitKind::Branch => Waiting::Branch,
             UnitKind::Mul => Waiting::Mul,
             UnitKind::Div => Waiting::Div,
+            UnitKind::Store if self.rename.ready_at(e.srcs[1]) > now => Waiting::Operands,
             UnitKind::Load | UnitKind::Store => Waiting::Agu,
         }
     }
