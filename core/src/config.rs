@@ -534,11 +534,14 @@ impl CoreConfig {
                 );
             }
         }
-        if self.frontend_depth > 1000 {
+        if self.frontend_depth == 0 || self.frontend_depth > 1000 {
             problem(
                 out,
                 "core.frontend_depth",
-                format!("must be at most 1000, got {}", self.frontend_depth),
+                format!(
+                    "must be 1..=1000 (cycles from fetch to dispatch), got {}",
+                    self.frontend_depth
+                ),
             );
         }
         if self.phys_regs <= 32 || self.phys_regs > 65_000 {

@@ -51,6 +51,8 @@ pub(crate) struct FrontEnd {
     depth: u64,
     state: Fetch,
     refill_until: u64,
+    /// Why the front end is refilling until `refill_until`.
+    refill: FrontState,
     next_seq: u64,
     max_insts: Option<u64>,
     pub truncated: bool,
@@ -70,6 +72,7 @@ impl FrontEnd {
             depth: u64::from(core.frontend_depth),
             state: Fetch::Running,
             refill_until: 0,
+            refill: FrontState::Running,
             next_seq: 0,
             max_insts,
             truncated: false,
@@ -91,9 +94,13 @@ impl FrontEnd {
         }
     }
 
-    pub(crate) fn icache_filled(&mut self) {
+    /// The instruction-cache line arrived at `cycle`: fetch restarts, and the
+    /// first instruction reaches dispatch `depth` cycles later.
+    pub(crate) fn icache_filled(&mut self, cycle: u64) {
         if self.state == Fetch::Icache {
             self.state = Fetch::Running;
+            self.refill = FrontState::Icache;
+            self.refill_until = cycle + self.depth;
         }
     }
 
@@ -101,13 +108,26 @@ impl FrontEnd {
     pub(crate) fn state(&self, now: u64) -> FrontState {
         match self.state {
             Fetch::WaitBranch(_) => FrontState::Mispredict,
+            // Issued but not executed yet: still an unresolved misprediction.
+            Fetch::Redirect(at) if now < at => FrontState::Mispredict,
             Fetch::Redirect(_) => FrontState::MispredictRefill,
             Fetch::Icache | Fetch::IcacheRetry(_) => FrontState::Icache,
             Fetch::Drained => FrontState::Drained,
-            Fetch::Running if now < self.refill_until => FrontState::MispredictRefill,
+            Fetch::Running if now < self.refill_until => self.refill,
             Fetch::Running if self.queue.len() >= self.capacity => FrontState::Backpressure,
             Fetch::Running => FrontState::Running,
         }
+    }
+
+    /// A one-line description for deadlock dumps.
+    pub(crate) fn describe(&self, now: u64) -> String {
+        format!(
+            "{:?} ({:?}), {} instructions queued for dispatch, {} fetched",
+            self.state,
+            self.state(now),
+            self.queue.len(),
+            self.next_seq
+        )
     }
 
     /// The next cycle after `now` at which the front end changes by itself.
@@ -136,6 +156,7 @@ impl<O: Observer> Pipeline<'_, O> {
             Fetch::Redirect(at) if at <= now => {
                 self.front.state = Fetch::Running;
                 self.front.refill_until = at + self.front.depth;
+                self.front.refill = FrontState::MispredictRefill;
                 self.active = true;
             }
             Fetch::IcacheRetry(stamp) if stamp != self.mem_gen => {
@@ -182,6 +203,11 @@ impl<O: Observer> Pipeline<'_, O> {
                                 self.front.state = Fetch::Icache;
                                 break;
                             }
+                        }
+                        Err(overlap_mem::Refusal::PortsBusy) => {
+                            // One line per cycle: look it up again next cycle.
+                            self.active = true;
+                            break;
                         }
                         Err(_) => {
                             self.front.state = Fetch::IcacheRetry(self.mem_gen);

@@ -134,9 +134,10 @@ impl Ledger {
         }
     }
 
-    /// Close the ledger at the end of a run (`cycles` = the total) and build its report.
-    pub fn finish(mut self, cycles: u64) -> LedgerReport {
-        self.close_episode(cycles);
+    /// Close the ledger at the end of a run (`end` = one past the last cycle)
+    /// and build its report.
+    pub fn finish(mut self, end: u64) -> LedgerReport {
+        self.close_episode(end);
         debug_assert_eq!(self.cycles.iter().sum::<u64>(), self.total);
         let mut ledger = IndexMap::new();
         let mut waiting = IndexMap::new();

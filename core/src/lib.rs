@@ -108,6 +108,8 @@ pub struct DeadlockDump {
     pub oldest: Vec<String>,
     /// Structures with no free entry.
     pub full: Vec<String>,
+    /// What the front end is doing.
+    pub front_end: String,
     /// Outstanding misses in the memory pipeline.
     pub outstanding: Vec<String>,
 }
@@ -119,6 +121,7 @@ impl fmt::Display for DeadlockDump {
             "model deadlock: no instruction retired from cycle {} to cycle {}",
             self.last_commit, self.cycle
         )?;
+        writeln!(f, "front end: {}", self.front_end)?;
         writeln!(f, "oldest instructions in the window:")?;
         for line in &self.oldest {
             writeln!(f, "  {line}")?;
@@ -209,7 +212,8 @@ pub fn simulate_with<O: Observer>(
     let ledger = Ledger::new(&structure_names(config));
     let (summary, (ledger, counters, extra)) =
         run_with(config, program, opts, (ledger, Counters::default(), extra))?;
-    let report = build_report(&summary, ledger.finish(summary.cycles), counters);
+    let end = summary.cycles + summary.warmup.map_or(0, |(cycles, _)| cycles);
+    let report = build_report(&summary, ledger.finish(end), counters);
     Ok((report, summary, extra))
 }
 

@@ -321,7 +321,11 @@ impl<O: Observer> Pipeline<'_, O> {
             }
             Err(why) => {
                 self.obs.refusal(now, s.seq, why);
-                if why != Refusal::PortsBusy {
+                if why == Refusal::PortsBusy {
+                    // Retry next cycle; the reason of an earlier refusal no longer holds.
+                    self.sq.ring.get_mut(si).refused = None;
+                    self.active = true;
+                } else {
                     let e = self.sq.ring.get_mut(si);
                     if e.refused.map(|r| r.0) != Some(why) {
                         self.active = true;

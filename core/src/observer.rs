@@ -102,11 +102,13 @@ pub enum Waiting {
     LoadStore,
     /// Completed, waiting to retire.
     Retire,
+    /// The window is empty but retired stores are still writing the cache.
+    StoreDrain,
 }
 
 impl Waiting {
     /// Every kind, in report order.
-    pub const ALL: [Waiting; 16] = [
+    pub const ALL: [Waiting; 17] = [
         Waiting::LoadL1,
         Waiting::LoadL2,
         Waiting::LoadL3,
@@ -122,6 +124,7 @@ impl Waiting {
         Waiting::Operands,
         Waiting::Issue,
         Waiting::Retire,
+        Waiting::StoreDrain,
         Waiting::Empty,
     ];
 
@@ -144,6 +147,7 @@ impl Waiting {
             Waiting::LoadMshr => "load.mshr",
             Waiting::LoadStore => "load.store",
             Waiting::Retire => "retire",
+            Waiting::StoreDrain => "store.drain",
         }
     }
 
@@ -158,6 +162,7 @@ impl Waiting {
                 | Waiting::LoadLockup
                 | Waiting::LoadMshr
                 | Waiting::LoadStore
+                | Waiting::StoreDrain
         )
     }
 

@@ -168,7 +168,7 @@ impl<'a, O: Observer> Pipeline<'a, O> {
         loop {
             self.cycle(now)?;
             let state = self.summary(now);
-            if self.front.is_drained() && self.rob.is_empty() {
+            if self.front.is_drained() && self.rob.is_empty() && self.sq.ring.len() == 0 {
                 self.obs.cycles(now, 1, &state);
                 let (start, before) = self.roi.unwrap_or((0, 0));
                 return Ok(Finished {
@@ -208,8 +208,9 @@ impl<'a, O: Observer> Pipeline<'a, O> {
                 next = next.min(later(at));
             }
         }
-        for si in self.sq.ring.head..self.sq.sent {
-            next = next.min(later(self.sq.ring.get(si).written_at));
+        for si in self.sq.ring.head..self.sq.ring.tail {
+            let s = self.sq.ring.get(si);
+            next = next.min(later(s.written_at)).min(later(s.addr_at));
         }
         for pool in self.units.iter().flatten() {
             next = next.min(later(pool.busy_until()));
@@ -249,7 +250,7 @@ impl<'a, O: Observer> Pipeline<'a, O> {
             match c.kind {
                 AccessKind::Load => self.finish(c.id, c.cycle),
                 AccessKind::Store => self.store_written(c.id, c.cycle),
-                AccessKind::Fetch => self.front.icache_filled(),
+                AccessKind::Fetch => self.front.icache_filled(c.cycle),
             }
         }
         self.completions = completions;
@@ -339,7 +340,11 @@ impl<'a, O: Observer> Pipeline<'a, O> {
     /// What the oldest instruction waits for at the end of cycle `now`.
     fn oldest_waiting(&self, now: u64) -> Waiting {
         let Some(e) = self.rob.head() else {
-            return Waiting::Empty;
+            return if self.sq.ring.len() > 0 {
+                Waiting::StoreDrain
+            } else {
+                Waiting::Empty
+            };
         };
         if e.done <= now {
             return Waiting::Retire;
@@ -450,6 +455,7 @@ impl<'a, O: Observer> Pipeline<'a, O> {
             last_commit: self.last_commit,
             oldest,
             full,
+            front_end: self.front.describe(now),
             outstanding: self.mem.describe_outstanding(),
         }
     }

@@ -45,7 +45,7 @@ fn program() -> impl Strategy<Value = String> {
 
 fn config() -> impl Strategy<Value = Config> {
     (
-        (1u32..6, 1u32..6, 1u32..8, 1u32..6, 0u32..6),
+        (1u32..6, 1u32..6, 1u32..8, 1u32..6, 1u32..6),
         (2u32..96, 1u32..24, 1u32..24, 0u32..64, 2u32..20, 2u32..20),
         (
             prop::sample::select(vec![
@@ -78,8 +78,9 @@ fn config() -> impl Strategy<Value = Config> {
             any::<bool>(),
             20u32..120,
         ),
+        (any::<bool>(), 1u32..4, 1u32..12, 1u32..3),
     )
-        .prop_map(|(w, s, m, p)| {
+        .prop_map(|(w, s, m, p, f)| {
             let mut c = Config::default();
             c.core.fetch_width = w.0;
             c.core.dispatch_width = w.1;
@@ -105,6 +106,15 @@ fn config() -> impl Strategy<Value = Config> {
             c.core.units[3].latency = p.2;
             c.core.units[3].pipelined = p.3;
             c.dram.latency_cycles = p.4;
+            if f.0 {
+                let mut l1i = overlap_mem::CacheConfig::l1i();
+                l1i.size_bytes = 1024;
+                l1i.ways = 2;
+                l1i.ports = f.3;
+                c.l1i = Some(l1i);
+            }
+            c.core.units[5].latency = f.1;
+            c.core.units[1].latency = f.2;
             c
         })
 }
