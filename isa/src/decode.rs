@@ -8,6 +8,7 @@
 //! operation uses, ...) are rejected rather than guessed at. FENCE decodes to
 //! [`Op::Fence`] with its `fm`/`pred`/`succ` field in `imm`; its reserved
 //! `rd` and `rs1` fields are ignored, as the spec asks of implementations.
+//! 16-bit parcels are decoded by [`crate::compressed::decode_compressed`].
 
 use crate::encode::opcode;
 use crate::inst::{Inst, Op, Reg};
@@ -17,7 +18,8 @@ use thiserror::Error;
 #[derive(Clone, Copy, Debug, PartialEq, Eq)]
 pub enum DecodeErrorKind {
     /// The low two bits are not `11`: a 16-bit compressed encoding, which this
-    /// 32-bit decoder does not handle.
+    /// 32-bit decoder does not handle (see
+    /// [`crate::compressed::decode_compressed`]).
     Compressed,
     /// The low five bits are `11111`: an encoding longer than 32 bits.
     TooLong,
@@ -29,6 +31,12 @@ pub enum DecodeErrorKind {
     /// A SYSTEM instruction other than ECALL and EBREAK (CSR access,
     /// privileged instructions).
     UnsupportedSystem,
+    /// A 16-bit floating-point load or store (C.FLD, C.FSD, C.FLDSP,
+    /// C.FSDSP): floating point is not executed.
+    CompressedFloat,
+    /// Given to the 16-bit decoder, a parcel whose low two bits are `11`:
+    /// the start of a 32-bit instruction.
+    NotCompressed,
 }
 
 impl std::fmt::Display for DecodeErrorKind {
@@ -41,18 +49,45 @@ impl std::fmt::Display for DecodeErrorKind {
             DecodeErrorKind::UnsupportedSystem => {
                 "a system instruction other than ecall and ebreak"
             }
+            DecodeErrorKind::CompressedFloat => {
+                "a compressed floating-point load or store (c.fld, c.fsd, c.fldsp, c.fsdsp); \
+                 floating point is not supported"
+            }
+            DecodeErrorKind::NotCompressed => {
+                "the low two bits are 11, so it is a 32-bit encoding, not a 16-bit one"
+            }
         })
     }
 }
 
-/// A word that is not an RV64IM instruction.
+/// A word that is not an RV64IM(C) instruction.
+///
+/// The message shows a 32-bit word as eight hex digits and a 16-bit parcel
+/// the compressed decoder rejected as four (`16-bit instruction 0x2000`).
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Error)]
-#[error("cannot decode instruction word 0x{word:08x}: {kind}")]
+#[error("cannot decode {}: {kind}", EncodingText(*.word, *.kind))]
 pub struct DecodeError {
-    /// The word.
+    /// The word (for a 16-bit parcel, in the low half).
     pub word: u32,
     /// Why it does not decode.
     pub kind: DecodeErrorKind,
+}
+
+/// How a [`DecodeError`] names the encoding it rejects.
+struct EncodingText(u32, DecodeErrorKind);
+
+impl std::fmt::Display for EncodingText {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        let EncodingText(word, kind) = *self;
+        let from_16_bit_decoder = word <= 0xffff
+            && word & 3 != 3
+            && !matches!(kind, DecodeErrorKind::Compressed | DecodeErrorKind::TooLong);
+        if from_16_bit_decoder {
+            write!(f, "16-bit instruction 0x{word:04x}")
+        } else {
+            write!(f, "instruction word 0x{word:08x}")
+        }
+    }
 }
 
 #[inline]

@@ -1,6 +1,8 @@
 //! The RV64IM instruction set for overlap: decoded instructions, a 32-bit
-//! decoder and encoder, an assembler for `.s` text, and the functional model
-//! that executes a program and yields its stream of dynamic instructions.
+//! decoder and encoder, a 16-bit decoder for compressed (RV64C) code, an
+//! assembler for `.s` text, a loader for static RV64 ELF executables, and the
+//! functional model that executes a program and yields its stream of dynamic
+//! instructions.
 //!
 //! Invariants: this crate knows nothing of time. It decides *what* a program
 //! does; the timing core decides *when*. The functional model is the oracle:
@@ -8,8 +10,10 @@
 #![deny(missing_docs)]
 
 pub mod asm;
+pub mod compressed;
 pub mod decode;
 pub mod dyninst;
+pub mod elf;
 pub mod encode;
 pub mod inst;
 pub mod machine;
@@ -17,8 +21,10 @@ pub mod memory;
 pub mod program;
 
 pub use asm::{AsmError, AsmErrors, assemble};
+pub use compressed::decode_compressed;
 pub use decode::{DecodeError, decode};
 pub use dyninst::DynInst;
+pub use elf::{ElfError, load_elf};
 pub use encode::{ImmError, check_imm, encode};
 pub use inst::{Format, Inst, Op, OpClass, Reg};
 pub use machine::{ExecError, Machine, MachineConfig};

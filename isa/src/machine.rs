@@ -5,11 +5,13 @@
 //! One step reads the pc, fetches the pre-decoded instruction, reads its
 //! source registers and, for a load, memory; it writes the destination
 //! register, memory for a store, and the pc. Executable segments are decoded
-//! lazily into a flat table indexed by `(pc - base) / 2` (2-byte granularity,
-//! ready for compressed instructions); a store into an executable segment
+//! lazily into a flat table indexed by `(pc - base) / 2` (2-byte granularity:
+//! 16-bit compressed instructions (RV64C) and 32-bit ones mix freely, and the
+//! pc advances by each instruction's length); a store into an executable segment
 //! drops the entries it overlaps so that self-modifying code stays exact.
 //!
-//! System calls (ECALL, number in `a7`): 93 `exit(a0)` and 64
+//! System calls (ECALL, number in `a7`): 93 `exit(a0)`, 94 `exit_group(a0)`
+//! (the same as exit for a single thread) and 64
 //! `write(fd = a0, buf = a1, len = a2)` to captured stdout (fd 1) or stderr
 //! (fd 2). Source: the Linux RISC-V system call numbers
 //! (`asm-generic/unistd.h`), recalled from memory.
@@ -45,6 +47,7 @@
 //! # Ok::<(), overlap_isa::ExecError>(())
 //! ```
 
+use crate::compressed::decode_compressed;
 use crate::decode::{DecodeError, decode};
 use crate::dyninst::DynInst;
 use crate::inst::{Inst, Op, OpClass, Reg};
@@ -54,6 +57,9 @@ use thiserror::Error;
 
 /// System call number of `exit`.
 pub const SYS_EXIT: u64 = 93;
+/// System call number of `exit_group`, which ends every thread; with one
+/// thread it is the same as `exit`.
+pub const SYS_EXIT_GROUP: u64 = 94;
 /// System call number of `write`.
 pub const SYS_WRITE: u64 = 64;
 
@@ -104,10 +110,10 @@ pub enum ExecError {
         /// The pc of the next instruction, which did not run.
         pc: u64,
     },
-    /// ECALL with a number in `a7` that is neither exit nor write.
+    /// ECALL with a number in `a7` other than write, exit and exit_group.
     #[error(
         "unknown system call {number} in a7 at pc {pc:#x} \
-         (supported: 64 write, 93 exit)"
+         (supported: 64 write, 93 exit, 94 exit_group)"
     )]
     UnknownSyscall {
         /// The number in `a7`.
@@ -132,7 +138,8 @@ pub enum ExecError {
         /// The pc of the EBREAK.
         pc: u64,
     },
-    /// The word at the pc is not an RV64IM instruction.
+    /// The instruction at the pc is not an RV64IMC instruction this model
+    /// executes. The message names the pc and the encoding in hex.
     #[error("illegal instruction at pc {pc:#x}: {source}")]
     IllegalInstruction {
         /// The pc.
@@ -717,20 +724,19 @@ impl Machine {
             source,
         };
         let low = self.mem.read_u16(pc).map_err(fetch_err)?;
-        // Low bits other than 11: a 16-bit compressed instruction, which the
-        // 32-bit decoder reports as such.
-        let word = if low & 3 != 3 {
-            u32::from(low)
-        } else {
-            if pc + 4 > self.active_base + self.active_size_bytes {
-                let region = self.mem.region_at(pc + 2).map(|r| r.name.clone());
-                return Err(match region {
-                    Some(region) => ExecError::FetchNotExecutable { pc, region },
-                    None => ExecError::FetchUnmapped { pc },
-                });
-            }
-            u32::from(low) | u32::from(self.mem.read_u16(pc + 2).map_err(fetch_err)?) << 16
-        };
+        // Low bits other than 11: a 16-bit compressed instruction.
+        if low & 3 != 3 {
+            return decode_compressed(low)
+                .map_err(|source| ExecError::IllegalInstruction { pc, source });
+        }
+        if pc + 4 > self.active_base + self.active_size_bytes {
+            let region = self.mem.region_at(pc + 2).map(|r| r.name.clone());
+            return Err(match region {
+                Some(region) => ExecError::FetchNotExecutable { pc, region },
+                None => ExecError::FetchUnmapped { pc },
+            });
+        }
+        let word = u32::from(low) | u32::from(self.mem.read_u16(pc + 2).map_err(fetch_err)?) << 16;
         decode(word).map_err(|source| ExecError::IllegalInstruction { pc, source })
     }
 
@@ -762,7 +768,7 @@ impl Machine {
         let number = self.regs[Reg::A7.index()];
         let a0 = self.regs[Reg::A0.index()];
         let dst = match number {
-            SYS_EXIT => {
+            SYS_EXIT | SYS_EXIT_GROUP => {
                 self.exit_code = Some(a0 as i64);
                 None
             }
