@@ -34,6 +34,7 @@ mod pipeline;
 pub mod predictor;
 mod rename;
 pub mod report;
+mod ring;
 mod rob;
 mod stations;
 mod units;

@@ -17,9 +17,10 @@
 
 use crate::config::{Config, UnitKind};
 use crate::fetch::FrontEnd;
-use crate::lsq::{LoadEntry, LoadState, Ring, StoreQueue};
+use crate::lsq::{LoadEntry, LoadState, StoreQueue};
 use crate::observer::{CycleState, Observer, StructSet, StructureId, Waiting};
 use crate::rename::Rename;
+use crate::ring::Ring;
 use crate::rob::{NOT_YET, Rob};
 use crate::stations::{Station, stations_by_class};
 use crate::units::UnitPool;

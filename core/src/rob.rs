@@ -3,10 +3,11 @@
 //!
 //! Per cycle, dispatch appends at the tail and commit removes from the head;
 //! issue and completion update entries in place. Entries are addressed by
-//! sequence number (masked to the slot array), which works because sequence numbers
+//! sequence number, which works because sequence numbers
 //! are handed out in program order and no wrong-path instruction ever enters.
 
 use crate::rename::{NO_REG, PhysReg};
+use crate::ring::Ring;
 use overlap_isa::DynInst;
 
 /// "Not known yet" for a cycle field.
@@ -47,84 +48,47 @@ impl RobEntry {
     }
 }
 
-/// The reorder buffer.
+/// The reorder buffer: a ring indexed by sequence number.
 #[derive(Debug)]
-pub(crate) struct Rob {
-    /// A power of two long; `capacity` bounds the live entries.
-    slots: Vec<Option<RobEntry>>,
-    mask: u64,
-    capacity: usize,
-    head_seq: u64,
-    len: usize,
-}
+pub(crate) struct Rob(Ring<RobEntry>);
 
 impl Rob {
     pub(crate) fn new(capacity: usize) -> Rob {
-        let n = capacity.next_power_of_two();
-        Rob {
-            slots: vec![None; n],
-            mask: n as u64 - 1,
-            capacity,
-            head_seq: 0,
-            len: 0,
-        }
+        Rob(Ring::new(capacity))
     }
 
     pub(crate) fn is_empty(&self) -> bool {
-        self.len == 0
+        self.0.is_empty()
     }
 
     pub(crate) fn is_full(&self) -> bool {
-        self.len == self.capacity
-    }
-
-    fn slot(&self, seq: u64) -> usize {
-        (seq & self.mask) as usize
+        self.0.is_full()
     }
 
     /// Append the next instruction in program order.
     pub(crate) fn push(&mut self, entry: RobEntry) {
-        debug_assert!(!self.is_full());
-        if self.len == 0 {
-            self.head_seq = entry.seq;
-        }
-        debug_assert_eq!(entry.seq, self.head_seq + self.len as u64, "program order");
-        let slot = self.slot(entry.seq);
-        self.slots[slot] = Some(entry);
-        self.len += 1;
+        let index = self.0.push(entry);
+        debug_assert_eq!(index, entry.seq, "program order");
     }
 
     pub(crate) fn head(&self) -> Option<&RobEntry> {
-        if self.len == 0 {
-            None
-        } else {
-            self.slots[self.slot(self.head_seq)].as_ref()
-        }
+        (!self.0.is_empty()).then(|| self.0.get(self.0.head))
     }
 
     pub(crate) fn pop_head(&mut self) -> RobEntry {
-        let slot = self.slot(self.head_seq);
-        let e = self.slots[slot].take().expect("head present");
-        self.head_seq += 1;
-        self.len -= 1;
-        e
+        self.0.pop()
     }
 
     pub(crate) fn get(&self, seq: u64) -> &RobEntry {
-        self.slots[self.slot(seq)]
-            .as_ref()
-            .expect("instruction in the window")
+        self.0.get(seq)
     }
 
     pub(crate) fn get_mut(&mut self, seq: u64) -> &mut RobEntry {
-        let slot = self.slot(seq);
-        self.slots[slot]
-            .as_mut()
-            .expect("instruction in the window")
+        self.0.get_mut(seq)
     }
 
     /// The entries from oldest to youngest.
     pub(crate) fn iter(&self) -> impl Iterator<Item = &RobEntry> {
-        (0..self.len as u64).map(move |i| self.get(self.head_seq + i))
+        self.0.iter()
     }
 }
