@@ -169,7 +169,7 @@ impl<'a, O: Observer> Pipeline<'a, O> {
         loop {
             self.cycle(now)?;
             let state = self.summary(now);
-            if self.front.is_drained() && self.rob.is_empty() && self.sq.ring.len() == 0 {
+            if self.front.is_drained() && self.rob.is_empty() && self.sq.ring.is_empty() {
                 self.obs.cycles(now, 1, &state);
                 let (start, before) = self.roi.unwrap_or((0, 0));
                 return Ok(Finished {
@@ -341,7 +341,7 @@ impl<'a, O: Observer> Pipeline<'a, O> {
     /// What the oldest instruction waits for at the end of cycle `now`.
     fn oldest_waiting(&self, now: u64) -> Waiting {
         let Some(e) = self.rob.head() else {
-            return if self.sq.ring.len() > 0 {
+            return if !self.sq.ring.is_empty() {
                 Waiting::StoreDrain
             } else {
                 Waiting::Empty
