@@ -1,11 +1,13 @@
 //! A small writer for generated assembly: instructions, labels, comments, a
-//! data section of zero-filled arrays, and the shared code snippets the
-//! kernels use to build their data (fills, identity tables, shuffles, the
-//! SplitMix64 step).
+//! data section of zero-filled arrays, the short idioms every kernel loop
+//! uses (count-down loops, address spans, wrapping offsets, register sums),
+//! and the shared code snippets the kernels use to build their data (fills,
+//! identity tables, shuffles, linked node orders, the SplitMix64 step).
 //!
-//! Register conventions of the snippets: they may clobber every `t*` and `a*`
-//! register; the in-program SplitMix64 keeps its state in `s8` and its
-//! constants in `s9`..`s11`. Kernels keep long-lived init values in `s0`..`s7`.
+//! Register conventions of the data snippets: they may clobber every `t*`
+//! and `a*` register; the in-program SplitMix64 keeps its state in `s8` and
+//! its constants in `s9`..`s11`. Kernels keep long-lived init values in
+//! `s0`..`s7`. The idioms touch only the registers they are given.
 
 use std::fmt::{self, Write as _};
 
@@ -94,13 +96,50 @@ impl Asm {
         self.label("measure_start");
     }
 
-    /// Exit with the value of `reg` as the exit code (ECALL 93).
-    pub(crate) fn exit_with(&mut self, reg: &str) {
-        if reg != "a0" {
-            emit!(self, "mv a0, {reg}");
+    /// `li reg, 0` for each of `regs`, in order.
+    pub(crate) fn clear(&mut self, regs: &[&str]) {
+        for reg in regs {
+            emit!(self, "li {reg}, 0");
         }
-        emit!(self, "li a7, 93");
-        emit!(self, "ecall");
+    }
+
+    /// `add dst, dst, r` for each `r` of `regs`, in order.
+    pub(crate) fn add_all(&mut self, dst: &str, regs: &[&str]) {
+        for reg in regs {
+            emit!(self, "add {dst}, {dst}, {reg}");
+        }
+    }
+
+    /// The bottom of a counted loop: decrements `counter` and branches back
+    /// to `top` while it is not zero.
+    pub(crate) fn count_down(&mut self, counter: &str, top: &str) {
+        emit!(self, "addi {counter}, {counter}, -1");
+        emit!(self, "bnez {counter}, {top}");
+    }
+
+    /// `dst = base + bytes` for a constant of any size (`li` then `add`).
+    pub(crate) fn offset(&mut self, dst: &str, base: &str, bytes: u64) {
+        debug_assert_ne!(dst, base, "offset would overwrite its base");
+        self.li(dst, bytes);
+        emit!(self, "add {dst}, {base}, {dst}");
+    }
+
+    /// `ptr = &label`, `end = ptr + bytes`: the bounds of a walk over the
+    /// first `bytes` bytes of an array.
+    pub(crate) fn span(&mut self, ptr: &str, end: &str, label: &str, bytes: u64) {
+        emit!(self, "la {ptr}, {label}");
+        self.offset(end, ptr, bytes);
+    }
+
+    /// `off = (off + step) mod limit` without a branch, for `off < limit`
+    /// and `step < limit` (clobbers `tmp`): add, then subtract `limit` when
+    /// the sum reached it.
+    pub(crate) fn wrap_add(&mut self, off: &str, step: &str, limit: &str, tmp: &str) {
+        emit!(self, "add {off}, {off}, {step}");
+        emit!(self, "sltu {tmp}, {off}, {limit}");
+        emit!(self, "addi {tmp}, {tmp}, -1");
+        emit!(self, "and {tmp}, {tmp}, {limit}");
+        emit!(self, "sub {off}, {off}, {tmp}");
     }
 
     /// Declares a zero-filled, line-aligned array of `bytes` bytes (rounded
@@ -115,8 +154,29 @@ impl Asm {
         reserved
     }
 
-    /// The complete source text.
-    pub(crate) fn finish(self) -> String {
+    /// Declares the arrays `names`, `bytes` bytes each, and starts the init
+    /// phase by filling the arrays of `filled` (in that order) with the
+    /// successive fills of `seed`'s [`FillSource`]; the others start zero.
+    pub(crate) fn filled_arrays(&mut self, bytes: u64, names: &[&str], filled: &[&str], seed: u64) {
+        for name in names {
+            self.array(name, bytes);
+        }
+        self.comment("---- init ----");
+        let mut fills = FillSource::new(seed);
+        for name in filled {
+            debug_assert!(names.contains(name), "{name} is not declared");
+            self.fill_array(name, bytes, fills.next_fill());
+        }
+    }
+
+    /// Exits with the value of `checksum` as the exit code (ECALL 93) and
+    /// returns the complete source text.
+    pub(crate) fn finish(mut self, checksum: &str) -> String {
+        if checksum != "a0" {
+            emit!(self, "mv a0, {checksum}");
+        }
+        emit!(self, "li a7, 93");
+        emit!(self, "ecall");
         let mut out = self.header;
         out.push_str("\n    .text\n_start:\n");
         out.push_str(&self.text);
@@ -150,19 +210,19 @@ impl Asm {
         emit!(self, "xor {out}, {out}, {tmp}");
     }
 
-    /// Fills `dwords` 8-byte words at `label` with the arithmetic sequence
-    /// `start + i * step` (wrapping). `dwords` must be a multiple of 8: the
-    /// loop stores eight words per iteration (2.25 instructions per word).
-    pub(crate) fn fill_dwords(&mut self, label: &str, dwords: u64, fill: Fill) {
-        assert!(dwords > 0 && dwords % 8 == 0, "fill of {dwords} words");
+    /// Fills the array at `label` with the arithmetic sequence of 8-byte
+    /// words `start + i * step` (wrapping), covering its first `bytes` bytes
+    /// rounded up to whole 64-byte lines ([`Asm::array`] reserves whole
+    /// lines, so the rounding stays inside the array). The loop stores eight
+    /// words per iteration (2.25 instructions per word).
+    pub(crate) fn fill_array(&mut self, label: &str, bytes: u64, fill: Fill) {
+        let dwords = bytes.div_ceil(64).max(1) * 8;
         let top = self.fresh("fill");
         self.comment(&format!(
             "fill {label}[0..{dwords}] = {:#x} + i * {:#x}",
             fill.start, fill.step
         ));
-        emit!(self, "la t0, {label}");
-        self.li("t1", dwords * 8);
-        emit!(self, "add t1, t0, t1");
+        self.span("t0", "t1", label, dwords * 8);
         self.li("t2", fill.start);
         self.li("t3", fill.step);
         self.label(&top);
@@ -184,9 +244,7 @@ impl Asm {
             "{label}: word 0 of record r (every {spacing} bytes) = {:#x} + r * {:#x}, r < {count}",
             fill.start, fill.step
         ));
-        emit!(self, "la t0, {label}");
-        self.li("t1", count * spacing);
-        emit!(self, "add t1, t0, t1");
+        self.span("t0", "t1", label, count * spacing);
         self.li("t2", fill.start);
         self.li("t3", fill.step);
         self.li("t4", spacing);
@@ -198,7 +256,7 @@ impl Asm {
     }
 
     /// Writes `table[i] = i` for `n` 32-bit entries at `label`.
-    pub(crate) fn identity_u32(&mut self, label: &str, n: u64) {
+    fn identity_u32(&mut self, label: &str, n: u64) {
         assert!(n > 0);
         let top = self.fresh("ident");
         self.comment(&format!("{label}[i] = i for i in 0..{n}"));
@@ -212,12 +270,53 @@ impl Asm {
         emit!(self, "bltu t1, t2, {top}");
     }
 
+    /// The `n`-entry 32-bit table at `label` as a node order: the identity,
+    /// then, when `random`, shuffled ([`Asm::shuffle_u32`]) by an in-program
+    /// SplitMix64 with state `seed`.
+    pub(crate) fn node_order(&mut self, label: &str, n: u64, random: bool, seed: u64) {
+        self.identity_u32(label, n);
+        if random {
+            self.splitmix_setup(seed);
+            self.shuffle_u32(label, n);
+        }
+    }
+
+    /// Links `count >= 2` nodes in the order of a 32-bit node-index table:
+    /// word 0 of node `order[g]` gets the address of node `order[g + 1]`,
+    /// and word 0 of the last node gets the value of `tail` (`zero` ends a
+    /// list, the head's register closes a cycle). Expects `t0` pointing at
+    /// `order[0]`, the nodes' base address in `s1` and the node size in
+    /// `s2`; leaves the first node's address in `head` and the last one's in
+    /// `a1`, and advances `t0` to the last entry (clobbers `t1` and `t6`).
+    pub(crate) fn link_nodes(&mut self, count: u64, head: &str, tail: &str) {
+        assert!(count >= 2, "a list of {count} nodes");
+        self.li("t6", count - 1);
+        self.node_address("a1", 0);
+        emit!(self, "mv {head}, a1");
+        let link = self.fresh("link");
+        self.label(&link);
+        self.node_address("t1", 4);
+        emit!(self, "sd t1, 0(a1)");
+        emit!(self, "mv a1, t1");
+        emit!(self, "addi t0, t0, 4");
+        self.count_down("t6", &link);
+        emit!(self, "sd {tail}, 0(a1)");
+    }
+
+    /// `dst = s1 + s2 * order` for the 32-bit node index at `offset(t0)`
+    /// (see [`Asm::link_nodes`]).
+    fn node_address(&mut self, dst: &str, offset: u64) {
+        emit!(self, "lwu {dst}, {offset}(t0)");
+        emit!(self, "mul {dst}, {dst}, s2");
+        emit!(self, "add {dst}, s1, {dst}");
+    }
+
     /// Shuffles the `n` 32-bit entries at `label` with the Fisher-Yates
     /// algorithm (Durstenfeld's in-place form) driven by the in-program
     /// SplitMix64 (set up by [`Asm::splitmix_setup`] first): for `i` from
     /// `n-1` down to 1, `j = mulhu(next(), i + 1)` (Lemire's multiply-shift
     /// range reduction), then swap entries `i` and `j`.
-    pub(crate) fn shuffle_u32(&mut self, label: &str, n: u64) {
+    fn shuffle_u32(&mut self, label: &str, n: u64) {
         assert!(n >= 2);
         let top = self.fresh("shuffle");
         self.comment(&format!("Fisher-Yates shuffle of {label}[0..{n}]"));
@@ -235,8 +334,7 @@ impl Asm {
         emit!(self, "lwu t4, 0(a1)");
         emit!(self, "sw t4, 0(t2)");
         emit!(self, "sw t3, 0(a1)");
-        emit!(self, "addi t1, t1, -1");
-        emit!(self, "bnez t1, {top}");
+        self.count_down("t1", &top);
     }
 }
 
@@ -276,11 +374,4 @@ impl FillSource {
     pub(crate) fn next_u64(&mut self) -> u64 {
         self.rng.next_u64()
     }
-}
-
-/// Number of 8-byte words to fill to cover `bytes` bytes, rounded up to a
-/// multiple of 8 words (what [`Asm::fill_dwords`] needs; [`Asm::array`]
-/// reserves whole 64-byte lines, so the rounding stays inside the array).
-pub(crate) fn fill_words(bytes: u64) -> u64 {
-    bytes.div_ceil(64).max(1) * 8
 }

@@ -291,12 +291,7 @@ impl Params {
 
     /// `name=value` pairs separated by spaces, in name order.
     pub(crate) fn summary(&self) -> String {
-        let parts: Vec<String> = self
-            .values
-            .iter()
-            .map(|(k, v)| format!("{k}={v}"))
-            .collect();
-        parts.join(" ")
+        summary(&self.values)
     }
 
     /// A constraint error for this workload.
@@ -307,6 +302,12 @@ impl Params {
             message: message.into(),
         }
     }
+}
+
+/// `name=value` pairs of `values` separated by spaces, in name order.
+pub(crate) fn summary(values: &BTreeMap<String, ParamValue>) -> String {
+    let parts: Vec<String> = values.iter().map(|(k, v)| format!("{k}={v}")).collect();
+    parts.join(" ")
 }
 
 #[cfg(test)]

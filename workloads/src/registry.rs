@@ -221,12 +221,7 @@ impl Built {
     /// `name=value` pairs of every parameter, in name order, separated by
     /// spaces (e.g. for a run label).
     pub fn param_summary(&self) -> String {
-        let parts: Vec<String> = self
-            .params
-            .iter()
-            .map(|(k, v)| format!("{k}={v}"))
-            .collect();
-        parts.join(" ")
+        crate::params::summary(&self.params)
     }
 }
 

@@ -16,7 +16,7 @@
 
 use crate::asm::{FillSource, emit};
 use crate::error::WorkloadError;
-use crate::kernels::{MAX_COUNT, start};
+use crate::kernels::{MAX_COUNT, chain_rounds, start};
 use crate::params::{ParamSpec, Params};
 
 /// Rounds per loop iteration.
@@ -59,11 +59,14 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
     a.li("t1", l);
     a.li("t2", m);
     a.measure_start();
-    a.li("a0", iters);
-    let top = a.fresh("round");
-    a.label(&top);
-    for r in 0..ROUNDS {
-        for acc in &ACCS[..chains] {
+    chain_rounds(
+        &mut a,
+        "a0",
+        "round",
+        iters,
+        ROUNDS,
+        &ACCS[..chains],
+        |a, r, acc| {
             if mul {
                 emit!(a, "mul {acc}, {acc}, t2");
             } else if r % 2 == 0 {
@@ -71,13 +74,8 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
             } else {
                 emit!(a, "xor {acc}, {acc}, t1");
             }
-        }
-    }
-    emit!(a, "addi a0, a0, -1");
-    emit!(a, "bnez a0, {top}");
-    for acc in &ACCS[1..chains] {
-        emit!(a, "add s0, s0, {acc}");
-    }
-    a.exit_with("s0");
-    Ok(a.finish())
+        },
+    );
+    a.add_all("s0", &ACCS[1..chains]);
+    Ok(a.finish("s0"))
 }

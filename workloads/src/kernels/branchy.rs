@@ -56,8 +56,7 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
     a.li("s0", x0);
     a.li("s1", threshold(taken));
     a.li("s2", count);
-    emit!(a, "li a1, 0");
-    emit!(a, "li a2, 0");
+    a.clear(&["a1", "a2"]);
     let top = a.fresh("iter");
     let yes = a.fresh("taken");
     let join = a.fresh("join");
@@ -75,9 +74,7 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
     a.label(&yes);
     emit!(a, "add a2, a2, t1");
     a.label(&join);
-    emit!(a, "addi s2, s2, -1");
-    emit!(a, "bnez s2, {top}");
+    a.count_down("s2", &top);
     emit!(a, "add a1, a1, a2");
-    a.exit_with("a1");
-    Ok(a.finish())
+    Ok(a.finish("a1"))
 }

@@ -23,7 +23,9 @@
 
 use crate::asm::{Asm, emit};
 use crate::error::WorkloadError;
-use crate::kernels::{MAX_COUNT, MAX_FOOTPRINT, start};
+use crate::kernels::{
+    MAX_COUNT, footprint_spec, layout_spec, random_layout, require_multiple, start,
+};
 use crate::params::{ParamSpec, Params};
 
 /// Registers holding the chain pointers, chain `c` in `PTRS[c]`.
@@ -35,21 +37,14 @@ const ACCS: [&str; 8] = ["t1", "t2", "t3", "t4", "t5", "t6", "s10", "s11"];
 
 pub(crate) fn params() -> Vec<ParamSpec> {
     vec![
-        ParamSpec::int(
-            "footprint",
+        footprint_spec(
             "bytes of nodes the chains cover (rounded down to whole nodes)",
             128,
-            MAX_FOOTPRINT,
             64 << 10,
         ),
         ParamSpec::int("node", "bytes per node, a multiple of 8", 8, 4096, 64),
         ParamSpec::int("k", "independent chains walked in lockstep", 1, 16, 1),
-        ParamSpec::choice(
-            "layout",
-            "node order: random permutation, or stride (consecutive nodes)",
-            &["random", "stride"],
-            "random",
-        ),
+        layout_spec("node order: random permutation, or stride (consecutive nodes)"),
         ParamSpec::int(
             "work",
             "ALU instructions per hop that use the loaded pointer (off the address path)",
@@ -69,9 +64,9 @@ pub(crate) fn params() -> Vec<ParamSpec> {
 
 pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, WorkloadError> {
     let footprint = p.uint("footprint");
-    let node = crate::kernels::require_multiple(p, "node", 8)?;
+    let node = require_multiple(p, "node", 8)?;
     let k = p.uint("k");
-    let random = p.choice("layout") == "random";
+    let random = random_layout(p);
     let work = p.uint("work");
     let iters = (p.uint("hops") / k).max(1);
     let seed = p.uint("seed");
@@ -105,11 +100,7 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
     a.array("chase_nodes", used * node);
 
     a.comment("---- init: node order, then link every chain into a cycle ----");
-    a.identity_u32("chase_order", used);
-    if random {
-        a.splitmix_setup(seed);
-        a.shuffle_u32("chase_order", used);
-    }
+    a.node_order("chase_order", used, random, seed);
     link_chains(&mut a, node, k, m);
 
     a.comment("chain heads: p_c = &nodes[order[c * m]]");
@@ -117,8 +108,7 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
     emit!(a, "la t4, chase_nodes");
     a.li("t5", node);
     for (c, ptr) in PTRS.iter().enumerate().take(k as usize) {
-        a.li("t1", c as u64 * m * 4);
-        emit!(a, "add t1, t3, t1");
+        a.offset("t1", "t3", c as u64 * m * 4);
         emit!(a, "lwu t1, 0(t1)");
         emit!(a, "mul t1, t1, t5");
         emit!(a, "add {ptr}, t4, t1");
@@ -128,9 +118,7 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
     } else {
         0
     };
-    for acc in &ACCS[..n_accs] {
-        emit!(a, "li {acc}, 0");
-    }
+    a.clear(&ACCS[..n_accs]);
 
     a.measure_start();
     a.li("s0", iters);
@@ -149,8 +137,7 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
             }
         }
     }
-    emit!(a, "addi s0, s0, -1");
-    emit!(a, "bnez s0, {top}");
+    a.count_down("s0", &top);
 
     a.comment("checksum: sum of (p_c - nodes) plus the accumulators");
     emit!(a, "la s1, chase_nodes");
@@ -158,18 +145,14 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
         emit!(a, "sub t0, {ptr}, s1");
         emit!(a, "add s0, s0, t0");
     }
-    for acc in &ACCS[..n_accs] {
-        emit!(a, "add s0, s0, {acc}");
-    }
-    a.exit_with("s0");
-    Ok(a.finish())
+    a.add_all("s0", &ACCS[..n_accs]);
+    Ok(a.finish("s0"))
 }
 
 /// Links the nodes: within each chain's slice of `chase_order`, node
 /// `order[g]` points to node `order[g + 1]`, and the last back to the first.
 fn link_chains(a: &mut Asm, node: u64, k: u64, m: u64) {
     let chain = a.fresh("link_chain");
-    let link = a.fresh("link");
     a.comment("link: nodes[order[g]].next = &nodes[order[g + 1]], cyclic within each chain");
     emit!(a, "la s0, chase_order");
     emit!(a, "la s1, chase_nodes");
@@ -179,22 +162,7 @@ fn link_chains(a: &mut Asm, node: u64, k: u64, m: u64) {
     a.li("s5", m * 4);
     a.label(&chain);
     emit!(a, "mv t0, s4");
-    a.li("t6", m - 1);
-    emit!(a, "lwu a1, 0(t0)");
-    emit!(a, "mul a1, a1, s2");
-    emit!(a, "add a1, s1, a1");
-    emit!(a, "mv a2, a1");
-    a.label(&link);
-    emit!(a, "lwu t1, 4(t0)");
-    emit!(a, "mul t1, t1, s2");
-    emit!(a, "add t1, s1, t1");
-    emit!(a, "sd t1, 0(a1)");
-    emit!(a, "mv a1, t1");
-    emit!(a, "addi t0, t0, 4");
-    emit!(a, "addi t6, t6, -1");
-    emit!(a, "bnez t6, {link}");
-    emit!(a, "sd a2, 0(a1)");
+    a.link_nodes(m, "a2", "a2");
     emit!(a, "add s4, s4, s5");
-    emit!(a, "addi s3, s3, -1");
-    emit!(a, "bnez s3, {chain}");
+    a.count_down("s3", &chain);
 }

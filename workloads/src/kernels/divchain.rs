@@ -13,7 +13,7 @@
 
 use crate::asm::{FillSource, emit};
 use crate::error::WorkloadError;
-use crate::kernels::{MAX_COUNT, start};
+use crate::kernels::{MAX_COUNT, chain_rounds, start};
 use crate::params::{ParamSpec, Params};
 
 /// Rounds per loop iteration.
@@ -52,20 +52,18 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
         a.li(reg, *v);
     }
     a.measure_start();
-    a.li("s1", iters);
-    let top = a.fresh("divide");
-    a.label(&top);
-    for _ in 0..ROUNDS {
-        for reg in &CHAINS[..chains] {
+    chain_rounds(
+        &mut a,
+        "s1",
+        "divide",
+        iters,
+        ROUNDS,
+        &CHAINS[..chains],
+        |a, _, reg| {
             emit!(a, "divu {reg}, s0, {reg}");
             emit!(a, "addi {reg}, {reg}, 3");
-        }
-    }
-    emit!(a, "addi s1, s1, -1");
-    emit!(a, "bnez s1, {top}");
-    for reg in &CHAINS[1..chains] {
-        emit!(a, "add a0, a0, {reg}");
-    }
-    a.exit_with("a0");
-    Ok(a.finish())
+        },
+    );
+    a.add_all("a0", &CHAINS[1..chains]);
+    Ok(a.finish("a0"))
 }

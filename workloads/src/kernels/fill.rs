@@ -14,39 +14,29 @@
 
 use crate::asm::{FillSource, emit};
 use crate::error::WorkloadError;
-use crate::kernels::{MAX_FOOTPRINT, elem_ops, elem_spec, passes_spec, start};
+use crate::kernels::streaming::{Sweep, Unrolled};
+use crate::kernels::{elem_ops, elem_spec, footprint_spec, passes_spec, start, unroll_spec};
 use crate::params::{ParamSpec, Params};
 
 pub(crate) fn params() -> Vec<ParamSpec> {
     vec![
-        ParamSpec::int(
-            "footprint",
+        footprint_spec(
             "bytes stored per pass (rounded down to whole unrolled iterations)",
             128,
-            MAX_FOOTPRINT,
             32 << 10,
         ),
         elem_spec(),
-        ParamSpec::int("unroll", "stores per loop iteration", 1, 16, 4),
+        unroll_spec("stores per loop iteration", 16, 4),
         passes_spec(4),
     ]
 }
 
 pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, WorkloadError> {
-    let footprint = p.uint("footprint");
     let (elem, load, store) = elem_ops(p);
-    let unroll = p.uint("unroll");
+    let size = Unrolled::from_params(p, elem, "elem")?;
     let passes = p.uint("passes");
-    let step = elem * unroll;
-    let iters = footprint / step;
-    if iters == 0 {
-        return Err(p.constraint(
-            "footprint",
-            format!("must be at least elem * unroll = {step} bytes, got {footprint}"),
-        ));
-    }
-    let bytes = iters * step;
-    let stores = iters * unroll * passes;
+    let bytes = size.bytes;
+    let stores = size.iters * size.unroll * passes;
     let fill = FillSource::new(p.uint("seed")).next_fill();
 
     let mut a = start(p, description);
@@ -60,29 +50,23 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
     a.li("s1", passes);
     a.li("s2", fill.start);
     a.li("s3", fill.step);
-    let pass = a.fresh("pass");
-    let body = a.fresh("body");
-    a.label(&pass);
-    emit!(a, "la a0, fill_buf");
-    a.li("a1", bytes);
-    emit!(a, "add a1, a0, a1");
-    a.label(&body);
-    for u in 0..unroll {
-        emit!(a, "{store} s2, {}(a0)", u * elem);
-    }
-    emit!(a, "addi a0, a0, {step}");
-    emit!(a, "bltu a0, a1, {body}");
-    emit!(a, "add s2, s2, s3");
-    emit!(a, "addi s1, s1, -1");
-    emit!(a, "bnez s1, {pass}");
+    let sweep = Sweep {
+        pointers: &[("a0", "fill_buf")],
+        lead: "a0",
+        end: "a1",
+        size,
+    };
+    sweep.emit(
+        &mut a,
+        |a, u| emit!(a, "{store} s2, {}(a0)", u * elem),
+        |a| emit!(a, "add s2, s2, s3"),
+    );
     emit!(a, "la a0, fill_buf");
     emit!(a, "{load} t0, 0(a0)");
-    a.li("t1", bytes - elem);
-    emit!(a, "add t1, a0, t1");
+    a.offset("t1", "a0", bytes - elem);
     emit!(a, "{load} t1, 0(t1)");
     emit!(a, "add t0, t0, t1");
     a.li("t2", stores);
     emit!(a, "add t0, t0, t2");
-    a.exit_with("t0");
-    Ok(a.finish())
+    Ok(a.finish("t0"))
 }

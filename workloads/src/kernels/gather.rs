@@ -13,21 +13,17 @@
 //!
 //! Checksum: the sum of the gathered words (wrapping).
 
-use crate::asm::{FillSource, emit, fill_words};
+use crate::asm::{FillSource, emit};
 use crate::error::WorkloadError;
-use crate::kernels::{MAX_FOOTPRINT, start};
+use crate::kernels::streaming::{acc, clear_accs, sum_accs, temp};
+use crate::kernels::{footprint_spec, start, unroll_spec};
 use crate::params::{ParamSpec, Params};
-
-const TEMPS: [&str; 8] = ["t0", "t1", "t2", "t3", "t4", "t5", "t6", "a2"];
-const ACCS: [&str; 4] = ["s2", "s3", "s4", "s5"];
 
 pub(crate) fn params() -> Vec<ParamSpec> {
     vec![
-        ParamSpec::int(
-            "footprint",
+        footprint_spec(
             "bytes of the table gathered from (rounded down to 8-byte words)",
             64,
-            MAX_FOOTPRINT,
             64 << 10,
         ),
         ParamSpec::int(
@@ -37,7 +33,7 @@ pub(crate) fn params() -> Vec<ParamSpec> {
             1 << 26,
             4096,
         ),
-        ParamSpec::int("unroll", "gathers per loop iteration", 1, 8, 4),
+        unroll_spec("gathers per loop iteration", 8, 4),
     ]
 }
 
@@ -58,12 +54,10 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
 
     a.comment("---- init: table fill, then random indices ----");
     let mut fills = FillSource::new(seed);
-    a.fill_dwords("gather_table", fill_words(words * 8), fills.next_fill());
+    a.fill_array("gather_table", words * 8, fills.next_fill());
     a.splitmix_setup(seed);
     let gen_top = a.fresh("index");
-    emit!(a, "la t0, gather_idx");
-    a.li("t1", count * 4);
-    emit!(a, "add t1, t0, t1");
+    a.span("t0", "t1", "gather_idx", count * 4);
     a.li("t2", words);
     a.label(&gen_top);
     a.splitmix_step("a0", "a1");
@@ -73,18 +67,13 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
     emit!(a, "bltu t0, t1, {gen_top}");
 
     a.measure_start();
-    for acc in ACCS {
-        emit!(a, "li {acc}, 0");
-    }
+    clear_accs(&mut a);
     emit!(a, "la s0, gather_table");
-    emit!(a, "la a0, gather_idx");
-    a.li("a1", count * 4);
-    emit!(a, "add a1, a0, a1");
+    a.span("a0", "a1", "gather_idx", count * 4);
     let body = a.fresh("gather");
     a.label(&body);
     for u in 0..unroll {
-        let t = TEMPS[u as usize];
-        let acc = ACCS[u as usize % ACCS.len()];
+        let (t, acc) = (temp(u, "a2"), acc(u));
         emit!(a, "lwu {t}, {}(a0)", 4 * u);
         emit!(a, "slli {t}, {t}, 3");
         emit!(a, "add {t}, s0, {t}");
@@ -93,9 +82,6 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
     }
     emit!(a, "addi a0, a0, {}", 4 * unroll);
     emit!(a, "bltu a0, a1, {body}");
-    emit!(a, "add s2, s2, s3");
-    emit!(a, "add s4, s4, s5");
-    emit!(a, "add s2, s2, s4");
-    a.exit_with("s2");
-    Ok(a.finish())
+    let sum = sum_accs(&mut a);
+    Ok(a.finish(sum))
 }

@@ -32,10 +32,9 @@
 //! within lines it has already fetched. So raising `hit` adds misses and
 //! lowers the L1D hit rate. The lookup-key stream itself is sequential.
 
-use crate::asm::FillSource;
-use crate::asm::emit;
+use crate::asm::{Asm, FillSource, emit};
 use crate::error::WorkloadError;
-use crate::kernels::{MAX_FOOTPRINT, require_multiple, start};
+use crate::kernels::{MAX_FOOTPRINT, footprint_spec, require_multiple, start};
 use crate::params::{ParamSpec, Params};
 use crate::rng::GOLDEN;
 
@@ -44,11 +43,9 @@ pub(crate) const HASH_MUL: u64 = GOLDEN;
 
 pub(crate) fn params() -> Vec<ParamSpec> {
     vec![
-        ParamSpec::int(
-            "footprint",
+        footprint_spec(
             "bytes of the table, 16 per slot (rounded down to whole slots)",
             1 << 10,
-            MAX_FOOTPRINT,
             64 << 10,
         ),
         ParamSpec::int("load", "percent of slots filled", 10, 90, 50),
@@ -115,8 +112,7 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
     a.splitmix_setup(seed);
     emit!(a, "la s0, hp_table");
     a.li("s1", slots);
-    a.li("s2", slots * 16);
-    emit!(a, "add s2, s0, s2");
+    a.offset("s2", "s0", slots * 16);
     a.li("s3", HASH_MUL);
     emit!(a, "la s4, hp_keys");
     a.li("s5", present);
@@ -134,10 +130,7 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
     a.label(&walk);
     emit!(a, "ld t2, 0(t1)");
     emit!(a, "beqz t2, {place}");
-    emit!(a, "addi t1, t1, 16");
-    emit!(a, "bltu t1, s2, {walk}");
-    emit!(a, "mv t1, s0");
-    emit!(a, "j {walk}");
+    next_slot(&mut a, "t1", &walk);
     a.label(&place);
     emit!(a, "sd a0, 0(t1)");
     emit!(a, "sd s6, 8(t1)");
@@ -148,9 +141,7 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
     let gen_top = a.fresh("lookup_key");
     let absent = a.fresh("absent_key");
     let store = a.fresh("store_key");
-    emit!(a, "la t0, hp_lookups");
-    a.li("t3", probes * 8);
-    emit!(a, "add t3, t0, t3");
+    a.span("t0", "t3", "hp_lookups", probes * 8);
     a.li("t4", hit);
     emit!(a, "li t5, 100");
     a.label(&gen_top);
@@ -174,11 +165,8 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
     a.measure_start();
     emit!(a, "la s8, hp_flows");
     a.li("s7", record);
-    emit!(a, "la a3, hp_lookups");
-    a.li("a4", probes * 8);
-    emit!(a, "add a4, a3, a4");
-    emit!(a, "li a5, 0");
-    emit!(a, "li a6, 0");
+    a.span("a3", "a4", "hp_lookups", probes * 8);
+    a.clear(&["a5", "a6"]);
     let look = a.fresh("lookup");
     let probe = a.fresh("probe");
     let found = a.fresh("found");
@@ -190,10 +178,7 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
     emit!(a, "ld t2, 0(t1)");
     emit!(a, "beq t2, a0, {found}");
     emit!(a, "beqz t2, {next}");
-    emit!(a, "addi t1, t1, 16");
-    emit!(a, "bltu t1, s2, {probe}");
-    emit!(a, "mv t1, s0");
-    emit!(a, "j {probe}");
+    next_slot(&mut a, "t1", &probe);
     a.label(&found);
     emit!(a, "ld t2, 8(t1)");
     emit!(a, "mul t2, t2, s7");
@@ -206,15 +191,23 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
     emit!(a, "bltu a3, a4, {look}");
     emit!(a, "slli a6, a6, 40");
     emit!(a, "add a5, a5, a6");
-    a.exit_with("a5");
-    Ok(a.finish())
+    Ok(a.finish("a5"))
 }
 
 /// `slot = table + 16 * mulhu(key * HASH_MUL, slots)`, with the table in
 /// `s0`, the slot count in `s1` and the multiplier in `s3`.
-fn hash_to_slot(a: &mut crate::asm::Asm, key: &str, slot: &str) {
+fn hash_to_slot(a: &mut Asm, key: &str, slot: &str) {
     emit!(a, "mul {slot}, {key}, s3");
     emit!(a, "mulhu {slot}, {slot}, s1");
     emit!(a, "slli {slot}, {slot}, 4");
     emit!(a, "add {slot}, s0, {slot}");
+}
+
+/// The linear probe's step: moves `slot` to the next slot, wrapping from the
+/// table's end (`s2`) to its start (`s0`), and jumps back to `top`.
+fn next_slot(a: &mut Asm, slot: &str, top: &str) {
+    emit!(a, "addi {slot}, {slot}, 16");
+    emit!(a, "bltu {slot}, s2, {top}");
+    emit!(a, "mv {slot}, s0");
+    emit!(a, "j {top}");
 }

@@ -20,9 +20,9 @@
 //!
 //! Checksum: A + B (wrapping).
 
-use crate::asm::{FillSource, emit, fill_words};
+use crate::asm::{FillSource, emit};
 use crate::error::WorkloadError;
-use crate::kernels::{MAX_COUNT, MAX_FOOTPRINT, require_multiple, start};
+use crate::kernels::{MAX_COUNT, footprint_spec, require_multiple, start};
 use crate::params::{ParamSpec, Params};
 
 /// Words in the hot array.
@@ -32,11 +32,9 @@ const TEMPS: [&str; 7] = ["t2", "t3", "t4", "t5", "a3", "a4", "a5"];
 
 pub(crate) fn params() -> Vec<ParamSpec> {
     vec![
-        ParamSpec::int(
-            "footprint",
+        footprint_spec(
             "bytes of the far region the missing loads visit",
             4 << 10,
-            MAX_FOOTPRINT,
             256 << 10,
         ),
         ParamSpec::int(
@@ -103,7 +101,7 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
     a.comment("---- init: one word per far granule, then the hot array ----");
     let mut fills = FillSource::new(p.uint("seed"));
     a.sparse_fill("hm_far", granules, spacing, fills.next_fill());
-    a.fill_dwords("hm_hot", fill_words(HOT_WORDS * 8), fills.next_fill());
+    a.fill_array("hm_hot", HOT_WORDS * 8, fills.next_fill());
 
     a.measure_start();
     emit!(a, "la s0, hm_far");
@@ -111,9 +109,7 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
     a.li("s2", step * spacing);
     a.li("s3", span);
     a.li("s4", misses);
-    emit!(a, "li a0, 0");
-    emit!(a, "li a1, 0");
-    emit!(a, "li a2, 0");
+    a.clear(&["a0", "a1", "a2"]);
     let top = a.fresh("far");
     a.label(&top);
     emit!(a, "add t0, s0, a0");
@@ -131,16 +127,10 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
         emit!(a, "ld {t}, {}({base})", 8 * j);
         emit!(a, "add a2, a2, {t}");
     }
-    emit!(a, "add a0, a0, s2");
-    emit!(a, "sltu t6, a0, s3");
-    emit!(a, "addi t6, t6, -1");
-    emit!(a, "and t6, t6, s3");
-    emit!(a, "sub a0, a0, t6");
-    emit!(a, "addi s4, s4, -1");
-    emit!(a, "bnez s4, {top}");
+    a.wrap_add("a0", "s2", "s3", "t6");
+    a.count_down("s4", &top);
     emit!(a, "add a1, a1, a2");
-    a.exit_with("a1");
-    Ok(a.finish())
+    Ok(a.finish("a1"))
 }
 
 #[cfg(test)]

@@ -15,9 +15,11 @@
 //!
 //! Checksum: payload sum plus number of node visits (wrapping).
 
-use crate::asm::{FillSource, emit, fill_words};
+use crate::asm::{FillSource, emit};
 use crate::error::WorkloadError;
-use crate::kernels::{MAX_FOOTPRINT, passes_spec, require_multiple, start};
+use crate::kernels::{
+    MAX_FOOTPRINT, layout_spec, passes_spec, random_layout, require_multiple, start,
+};
 use crate::params::{ParamSpec, Params};
 
 /// Temporaries for the payload loads.
@@ -33,12 +35,7 @@ pub(crate) fn params() -> Vec<ParamSpec> {
             248,
             24,
         ),
-        ParamSpec::choice(
-            "layout",
-            "list order in memory: random permutation, or stride (consecutive nodes)",
-            &["random", "stride"],
-            "random",
-        ),
+        layout_spec("list order in memory: random permutation, or stride (consecutive nodes)"),
         passes_spec(4),
     ]
 }
@@ -46,7 +43,7 @@ pub(crate) fn params() -> Vec<ParamSpec> {
 pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, WorkloadError> {
     let nodes = p.uint("nodes");
     let payload = require_multiple(p, "payload", 8)?;
-    let random = p.choice("layout") == "random";
+    let random = random_layout(p);
     let passes = p.uint("passes");
     let seed = p.uint("seed");
     let node_bytes = 8 + payload;
@@ -73,36 +70,16 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
 
     a.comment("---- init: payload fill, node order, links ----");
     let mut fills = FillSource::new(seed);
-    a.fill_dwords("lw_nodes", fill_words(bytes), fills.next_fill());
-    a.identity_u32("lw_order", nodes);
-    if random {
-        a.splitmix_setup(seed);
-        a.shuffle_u32("lw_order", nodes);
-    }
-    let link = a.fresh("link");
+    a.fill_array("lw_nodes", bytes, fills.next_fill());
+    a.node_order("lw_order", nodes, random, seed);
     a.comment("link: nodes[order[g]].next = &nodes[order[g + 1]], the last one null");
     emit!(a, "la t0, lw_order");
     emit!(a, "la s1, lw_nodes");
     a.li("s2", node_bytes);
-    a.li("t6", nodes - 1);
-    emit!(a, "lwu a1, 0(t0)");
-    emit!(a, "mul a1, a1, s2");
-    emit!(a, "add a1, s1, a1");
-    emit!(a, "mv s3, a1");
-    a.label(&link);
-    emit!(a, "lwu t1, 4(t0)");
-    emit!(a, "mul t1, t1, s2");
-    emit!(a, "add t1, s1, t1");
-    emit!(a, "sd t1, 0(a1)");
-    emit!(a, "mv a1, t1");
-    emit!(a, "addi t0, t0, 4");
-    emit!(a, "addi t6, t6, -1");
-    emit!(a, "bnez t6, {link}");
-    emit!(a, "sd zero, 0(a1)");
+    a.link_nodes(nodes, "s3", "zero");
 
     a.measure_start();
-    emit!(a, "li s4, 0");
-    emit!(a, "li s5, 0");
+    a.clear(&["s4", "s5"]);
     a.li("s6", passes);
     let pass = a.fresh("pass");
     let walk = a.fresh("walk");
@@ -117,9 +94,7 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
     emit!(a, "addi s5, s5, 1");
     emit!(a, "ld a0, 0(a0)");
     emit!(a, "bnez a0, {walk}");
-    emit!(a, "addi s6, s6, -1");
-    emit!(a, "bnez s6, {pass}");
+    a.count_down("s6", &pass);
     emit!(a, "add s4, s4, s5");
-    a.exit_with("s4");
-    Ok(a.finish())
+    Ok(a.finish("s4"))
 }

@@ -17,7 +17,7 @@
 //! Checksum: `h = h * 31 + C[i][j]` over the computed rows of C in row-major
 //! order, starting from 0 (wrapping), read after the multiply.
 
-use crate::asm::{Asm, FillSource, emit, fill_words};
+use crate::asm::{Asm, emit};
 use crate::error::WorkloadError;
 use crate::kernels::start;
 use crate::params::{ParamSpec, Params};
@@ -77,13 +77,8 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
          {} multiply-adds",
         rows * n * n
     ));
-    a.array("mm_a", bytes);
-    a.array("mm_b", bytes);
-    a.array("mm_c", bytes);
-    a.comment("---- init ----");
-    let mut fills = FillSource::new(p.uint("seed"));
-    a.fill_dwords("mm_a", fill_words(bytes), fills.next_fill());
-    a.fill_dwords("mm_b", fill_words(bytes), fills.next_fill());
+    let arrays = ["mm_a", "mm_b", "mm_c"];
+    a.filled_arrays(bytes, &arrays, &arrays[..2], p.uint("seed"));
 
     a.measure_start();
     emit!(a, "la s0, mm_a");
@@ -99,8 +94,7 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
     a.comment("checksum: h = h * 31 + C[i][j] over the computed rows");
     let sum = a.fresh("checksum");
     emit!(a, "mv t0, s2");
-    a.li("t1", rows * row_bytes);
-    emit!(a, "add t1, t0, t1");
+    a.offset("t1", "t0", rows * row_bytes);
     emit!(a, "li a0, 0");
     a.label(&sum);
     emit!(a, "ld t2, 0(t0)");
@@ -109,8 +103,7 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
     emit!(a, "add a0, a0, t2");
     emit!(a, "addi t0, t0, 8");
     emit!(a, "bltu t0, t1, {sum}");
-    a.exit_with("a0");
-    Ok(a.finish())
+    Ok(a.finish("a0"))
 }
 
 /// i-j-k with the dot product in a register. A in `s0`, B in `s1`, C in

@@ -46,6 +46,7 @@ pub mod listwalk;
 pub mod matmul;
 pub mod stencil;
 pub mod stream;
+mod streaming;
 pub mod stride;
 pub mod triad;
 
@@ -61,6 +62,30 @@ pub(crate) const MAX_COUNT: i64 = 1 << 30;
 
 /// Largest number of passes over the data.
 pub(crate) const MAX_PASSES: i64 = 1 << 20;
+
+/// A `footprint` parameter: bytes of data, from `min` to [`MAX_FOOTPRINT`].
+pub(crate) fn footprint_spec(description: &'static str, min: i64, default: i64) -> ParamSpec {
+    ParamSpec::int("footprint", description, min, MAX_FOOTPRINT, default)
+}
+
+/// An `unroll` parameter: work items per loop iteration, 1 to `max`.
+pub(crate) fn unroll_spec(description: &'static str, max: i64, default: i64) -> ParamSpec {
+    ParamSpec::int("unroll", description, 1, max, default)
+}
+
+/// The node orders of the linked kernels (`chase`, `listwalk`).
+const LAYOUT_CHOICES: &[&str] = &["random", "stride"];
+
+/// A `layout` parameter: a random permutation of the nodes (the default),
+/// or consecutive nodes.
+pub(crate) fn layout_spec(description: &'static str) -> ParamSpec {
+    ParamSpec::choice("layout", description, LAYOUT_CHOICES, "random")
+}
+
+/// Whether the `layout` parameter asks for a random node order.
+pub(crate) fn random_layout(p: &Params) -> bool {
+    p.choice("layout") == "random"
+}
 
 /// A `passes` parameter.
 pub(crate) fn passes_spec(default: i64) -> ParamSpec {
@@ -83,6 +108,30 @@ pub(crate) fn elem_ops(p: &Params) -> (u64, &'static str, &'static str) {
         "4" => (4, "lwu", "sw"),
         _ => (8, "ld", "sd"),
     }
+}
+
+/// The loop of the register-chain kernels (`alu`, `divchain`): `iters`
+/// iterations, counted down in `counter`, of `rounds` rounds each; a round
+/// runs `step(a, round, reg)` once per chain register, in chain order. The
+/// loop's label is a fresh one named after `stem`.
+pub(crate) fn chain_rounds(
+    a: &mut Asm,
+    counter: &str,
+    stem: &str,
+    iters: u64,
+    rounds: u64,
+    chains: &[&str],
+    mut step: impl FnMut(&mut Asm, u64, &str),
+) {
+    a.li(counter, iters);
+    let top = a.fresh(stem);
+    a.label(&top);
+    for round in 0..rounds {
+        for reg in chains {
+            step(a, round, reg);
+        }
+    }
+    a.count_down(counter, &top);
 }
 
 /// A new program for the workload of `p`, with the parameter summary in

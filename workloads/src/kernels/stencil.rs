@@ -13,7 +13,7 @@
 //!
 //! Checksum: the sum of every value written (wrapping).
 
-use crate::asm::{FillSource, emit, fill_words};
+use crate::asm::{FillSource, emit};
 use crate::error::WorkloadError;
 use crate::kernels::{passes_spec, start};
 use crate::params::{ParamSpec, Params};
@@ -45,8 +45,8 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
     a.array("st_g1", bytes);
     a.comment("---- init: both grids get the same fill ----");
     let fill = FillSource::new(p.uint("seed")).next_fill();
-    a.fill_dwords("st_g0", fill_words(bytes), fill);
-    a.fill_dwords("st_g1", fill_words(bytes), fill);
+    a.fill_array("st_g0", bytes, fill);
+    a.fill_array("st_g1", bytes, fill);
 
     a.measure_start();
     emit!(a, "la s0, st_g0");
@@ -89,13 +89,10 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
     emit!(a, "bltu a2, a4, {cell}");
     emit!(a, "add a0, a0, s2");
     emit!(a, "add a1, a1, s2");
-    emit!(a, "addi s4, s4, -1");
-    emit!(a, "bnez s4, {row}");
+    a.count_down("s4", &row);
     emit!(a, "mv t0, s0");
     emit!(a, "mv s0, s1");
     emit!(a, "mv s1, t0");
-    emit!(a, "addi s3, s3, -1");
-    emit!(a, "bnez s3, {sweep}");
-    a.exit_with("a7");
-    Ok(a.finish())
+    a.count_down("s3", &sweep);
+    Ok(a.finish("a7"))
 }

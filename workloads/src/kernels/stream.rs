@@ -10,81 +10,56 @@
 //!
 //! Checksum: the sum of all elements read, over all passes (wrapping).
 
-use crate::asm::{FillSource, emit, fill_words};
+use crate::asm::emit;
 use crate::error::WorkloadError;
-use crate::kernels::{MAX_FOOTPRINT, elem_ops, elem_spec, passes_spec, start};
+use crate::kernels::streaming::{Sweep, Unrolled, acc, clear_accs, sum_accs, temp};
+use crate::kernels::{elem_ops, elem_spec, footprint_spec, passes_spec, start, unroll_spec};
 use crate::params::{ParamSpec, Params};
-
-/// Load destinations, rotated.
-const TEMPS: [&str; 8] = ["t0", "t1", "t2", "t3", "t4", "t5", "t6", "a2"];
-/// Accumulators.
-const ACCS: [&str; 4] = ["s2", "s3", "s4", "s5"];
 
 pub(crate) fn params() -> Vec<ParamSpec> {
     vec![
-        ParamSpec::int(
-            "footprint",
+        footprint_spec(
             "bytes read per pass (rounded down to whole unrolled iterations)",
             128,
-            MAX_FOOTPRINT,
             32 << 10,
         ),
         elem_spec(),
-        ParamSpec::int("unroll", "elements loaded per loop iteration", 1, 16, 4),
+        unroll_spec("elements loaded per loop iteration", 16, 4),
         passes_spec(4),
     ]
 }
 
 pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, WorkloadError> {
-    let footprint = p.uint("footprint");
     let (elem, load, _) = elem_ops(p);
-    let unroll = p.uint("unroll");
+    let size = Unrolled::from_params(p, elem, "elem")?;
     let passes = p.uint("passes");
-    let step = elem * unroll;
-    let iters = footprint / step;
-    if iters == 0 {
-        return Err(p.constraint(
-            "footprint",
-            format!("must be at least elem * unroll = {step} bytes, got {footprint}"),
-        ));
-    }
-    let bytes = iters * step;
+    let (iters, bytes) = (size.iters, size.bytes);
 
     let mut a = start(p, description);
     a.note(format_args!(
         "derived: {bytes} bytes = {} elements of {elem} bytes, {iters} iterations per pass",
         bytes / elem
     ));
-    a.array("stream_data", bytes);
-    a.comment("---- init ----");
-    let mut fills = FillSource::new(p.uint("seed"));
-    a.fill_dwords("stream_data", fill_words(bytes), fills.next_fill());
+    a.filled_arrays(bytes, &["stream_data"], &["stream_data"], p.uint("seed"));
 
     a.measure_start();
-    for acc in ACCS {
-        emit!(a, "li {acc}, 0");
-    }
+    clear_accs(&mut a);
     a.li("s1", passes);
-    let pass = a.fresh("pass");
-    let body = a.fresh("body");
-    a.label(&pass);
-    emit!(a, "la a0, stream_data");
-    a.li("a1", bytes);
-    emit!(a, "add a1, a0, a1");
-    a.label(&body);
-    for u in 0..unroll {
-        let t = TEMPS[u as usize % TEMPS.len()];
-        let acc = ACCS[u as usize % ACCS.len()];
-        emit!(a, "{load} {t}, {}(a0)", u * elem);
-        emit!(a, "add {acc}, {acc}, {t}");
-    }
-    emit!(a, "addi a0, a0, {step}");
-    emit!(a, "bltu a0, a1, {body}");
-    emit!(a, "addi s1, s1, -1");
-    emit!(a, "bnez s1, {pass}");
-    emit!(a, "add s2, s2, s3");
-    emit!(a, "add s4, s4, s5");
-    emit!(a, "add s2, s2, s4");
-    a.exit_with("s2");
-    Ok(a.finish())
+    let sweep = Sweep {
+        pointers: &[("a0", "stream_data")],
+        lead: "a0",
+        end: "a1",
+        size,
+    };
+    sweep.emit(
+        &mut a,
+        |a, u| {
+            let (t, acc) = (temp(u, "a2"), acc(u));
+            emit!(a, "{load} {t}, {}(a0)", u * elem);
+            emit!(a, "add {acc}, {acc}, {t}");
+        },
+        |_| {},
+    );
+    let sum = sum_accs(&mut a);
+    Ok(a.finish(sum))
 }

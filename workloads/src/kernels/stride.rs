@@ -12,9 +12,9 @@
 //!
 //! Checksum: the sum of the words loaded (wrapping).
 
-use crate::asm::{FillSource, emit, fill_words};
+use crate::asm::emit;
 use crate::error::WorkloadError;
-use crate::kernels::{MAX_COUNT, MAX_FOOTPRINT, require_multiple, start};
+use crate::kernels::{MAX_COUNT, MAX_FOOTPRINT, footprint_spec, require_multiple, start};
 use crate::params::{ParamSpec, Params};
 
 /// Loads per loop iteration.
@@ -22,11 +22,9 @@ pub(crate) const UNROLL: u64 = 4;
 
 pub(crate) fn params() -> Vec<ParamSpec> {
     vec![
-        ParamSpec::int(
-            "footprint",
+        footprint_spec(
             "bytes of the array the offsets wrap around (rounded down to a multiple of 8)",
             64,
-            MAX_FOOTPRINT,
             64 << 10,
         ),
         ParamSpec::int(
@@ -62,18 +60,19 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
         "derived: {footprint} bytes, {} loads in {iters} iterations",
         iters * UNROLL
     ));
-    a.array("stride_data", footprint);
-    a.comment("---- init ----");
-    let mut fills = FillSource::new(p.uint("seed"));
-    a.fill_dwords("stride_data", fill_words(footprint), fills.next_fill());
+    a.filled_arrays(
+        footprint,
+        &["stride_data"],
+        &["stride_data"],
+        p.uint("seed"),
+    );
 
     a.measure_start();
     emit!(a, "la s0, stride_data");
     a.li("s1", footprint);
     a.li("s2", stride);
     a.li("s3", iters);
-    emit!(a, "li a0, 0");
-    emit!(a, "li a1, 0");
+    a.clear(&["a0", "a1"]);
     let top = a.fresh("strided");
     a.label(&top);
     for u in 0..UNROLL {
@@ -81,15 +80,8 @@ pub(crate) fn generate(p: &Params, description: &'static str) -> Result<String, 
         emit!(a, "add {t}, s0, a0");
         emit!(a, "ld {t}, 0({t})");
         emit!(a, "add a1, a1, {t}");
-        // o = o + stride; if o >= F { o -= F } without a branch.
-        emit!(a, "add a0, a0, s2");
-        emit!(a, "sltu t4, a0, s1");
-        emit!(a, "addi t4, t4, -1");
-        emit!(a, "and t4, t4, s1");
-        emit!(a, "sub a0, a0, t4");
+        a.wrap_add("a0", "s2", "s1", "t4");
     }
-    emit!(a, "addi s3, s3, -1");
-    emit!(a, "bnez s3, {top}");
-    a.exit_with("a1");
-    Ok(a.finish())
+    a.count_down("s3", &top);
+    Ok(a.finish("a1"))
 }

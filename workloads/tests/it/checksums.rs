@@ -4,19 +4,25 @@
 //! Arithmetic is wrapping 64-bit, as in RV64 (Source: RISC-V unprivileged
 //! spec, RV64I: integer computational instructions ignore overflow).
 
-use crate::util::{Fills, SplitMix64, below, build, run, shuffle, symbol};
+use std::fmt::Display;
 
+use crate::util::{Fills, SplitMix64, below, build, ov, run, shuffle, symbol};
+
+/// Builds `name` with `overrides` (any printable values), runs it, and
+/// checks its exit code against `expected` computed from the built program.
 fn check(
     name: &str,
-    overrides: &[(&str, &str)],
+    overrides: &[(&str, &dyn Display)],
     expected: impl FnOnce(&overlap_workloads::Built) -> u64,
 ) {
     let built = build(name, overrides);
     let want = expected(&built) as i64;
     let (got, insts) = run(&built);
     assert_eq!(
-        got, want,
-        "{name} {overrides:?}: exit code (after {insts} instructions)"
+        got,
+        want,
+        "{name} {:?}: exit code (after {insts} instructions)",
+        ov(overrides)
     );
 }
 
@@ -78,38 +84,38 @@ fn chase_model(
 fn chase_checksum() {
     check(
         "chase",
-        &[("footprint", "16K"), ("hops", "3000"), ("seed", "7")],
+        &[("footprint", &"16K"), ("hops", &3000), ("seed", &7)],
         |b| chase_model(symbol(b, "chase_nodes"), 16 << 10, 64, 1, true, 0, 3000, 7),
     );
     check(
         "chase",
         &[
-            ("footprint", "20000"),
-            ("node", "40"),
-            ("k", "3"),
-            ("work", "3"),
-            ("hops", "2000"),
+            ("footprint", &20000),
+            ("node", &40),
+            ("k", &3),
+            ("work", &3),
+            ("hops", &2000),
         ],
         |b| chase_model(symbol(b, "chase_nodes"), 20000, 40, 3, true, 3, 2000, 1),
     );
     check(
         "chase",
         &[
-            ("footprint", "8K"),
-            ("k", "11"),
-            ("work", "2"),
-            ("hops", "5000"),
-            ("layout", "stride"),
+            ("footprint", &"8K"),
+            ("k", &11),
+            ("work", &2),
+            ("hops", &5000),
+            ("layout", &"stride"),
         ],
         |b| chase_model(symbol(b, "chase_nodes"), 8 << 10, 64, 11, false, 2, 5000, 1),
     );
     check(
         "chase",
         &[
-            ("footprint", "4K"),
-            ("k", "16"),
-            ("node", "128"),
-            ("hops", "1"),
+            ("footprint", &"4K"),
+            ("k", &16),
+            ("node", &128),
+            ("hops", &1),
         ],
         |b| chase_model(symbol(b, "chase_nodes"), 4 << 10, 128, 16, true, 0, 1, 1),
     );
@@ -141,16 +147,16 @@ fn listwalk_checksum() {
     check(
         "listwalk",
         &[
-            ("nodes", "500"),
-            ("payload", "24"),
-            ("passes", "3"),
-            ("seed", "99"),
+            ("nodes", &500),
+            ("payload", &24),
+            ("passes", &3),
+            ("seed", &99),
         ],
         |_| listwalk_model(500, 24, true, 3, 99),
     );
     check(
         "listwalk",
-        &[("nodes", "300"), ("payload", "0"), ("layout", "stride")],
+        &[("nodes", &300), ("payload", &0), ("layout", &"stride")],
         |_| listwalk_model(300, 0, false, 4, 1),
     );
 }
@@ -177,80 +183,91 @@ fn stream_model(footprint: u64, elem: u64, unroll: u64, passes: u64, seed: u64) 
     sum
 }
 
-#[test]
-fn stream_checksum() {
-    for (fp, elem, unroll, passes) in [
-        (4096u64, 8u64, 4u64, 2u64),
-        (1000, 1, 3, 1),
-        (3000, 2, 16, 2),
-        (777, 4, 5, 1),
-    ] {
-        let (fps, es, us, ps) = (
-            fp.to_string(),
-            elem.to_string(),
-            unroll.to_string(),
-            passes.to_string(),
-        );
+/// Checks a kernel with the parameters `footprint`, `elem`, `unroll` and
+/// `passes` (`stream`, `fill`) for each case `(footprint, elem, unroll,
+/// passes)`, against `model` of the case.
+fn check_elem_cases(
+    name: &str,
+    seed: u64,
+    cases: &[(u64, u64, u64, u64)],
+    model: impl Fn(u64, u64, u64, u64) -> u64,
+) {
+    for &(fp, elem, unroll, passes) in cases {
         check(
-            "stream",
+            name,
             &[
-                ("footprint", &fps),
-                ("elem", &es),
-                ("unroll", &us),
-                ("passes", &ps),
-                ("seed", "5"),
+                ("footprint", &fp),
+                ("elem", &elem),
+                ("unroll", &unroll),
+                ("passes", &passes),
+                ("seed", &seed),
             ],
-            |_| stream_model(fp, elem, unroll, passes, 5),
+            |_| model(fp, elem, unroll, passes),
         );
     }
 }
 
+#[test]
+fn stream_checksum() {
+    check_elem_cases(
+        "stream",
+        5,
+        &[
+            (4096, 8, 4, 2),
+            (1000, 1, 3, 1),
+            (3000, 2, 16, 2),
+            (777, 4, 5, 1),
+        ],
+        |fp, elem, unroll, passes| stream_model(fp, elem, unroll, passes, 5),
+    );
+}
+
 // ---------------------------------------------------------------- copy, triad
+
+/// The checksum `copy` and `triad` document: every output word `out(i)`
+/// written over all passes (the footprint rounded down to whole iterations
+/// of `unroll` words), plus the first and the last output word read back.
+fn output_words_model(fp: u64, unroll: u64, passes: u64, out: impl Fn(u64) -> u64) -> u64 {
+    let words = fp / (8 * unroll) * unroll;
+    let mut sum = 0u64;
+    for _ in 0..passes {
+        for i in 0..words {
+            sum = sum.wrapping_add(out(i));
+        }
+    }
+    sum.wrapping_add(out(0)).wrapping_add(out(words - 1))
+}
 
 #[test]
 fn copy_checksum() {
     let (fp, unroll, passes) = (5000u64, 3u64, 2u64);
     check(
         "copy",
-        &[("footprint", "5000"), ("unroll", "3"), ("passes", "2")],
+        &[("footprint", &fp), ("unroll", &unroll), ("passes", &passes)],
         |_| {
-            let words = fp / (8 * unroll) * unroll;
             let fill = Fills::new(1).next_fill();
-            let mut sum = 0u64;
-            for _ in 0..passes {
-                for i in 0..words {
-                    sum = sum.wrapping_add(fill.word(i));
-                }
-            }
-            sum.wrapping_add(fill.word(0))
-                .wrapping_add(fill.word(words - 1))
+            output_words_model(fp, unroll, passes, |i| fill.word(i))
         },
     );
 }
 
 #[test]
 fn triad_checksum() {
-    let (fp, unroll, passes) = (6000u64, 3u64, 2u64);
+    let (fp, unroll, passes, seed) = (6000u64, 3u64, 2u64, 3u64);
     check(
         "triad",
         &[
-            ("footprint", "6000"),
-            ("unroll", "3"),
-            ("passes", "2"),
-            ("seed", "3"),
+            ("footprint", &fp),
+            ("unroll", &unroll),
+            ("passes", &passes),
+            ("seed", &seed),
         ],
         |_| {
-            let words = fp / (8 * unroll) * unroll;
-            let mut fills = Fills::new(3);
+            let mut fills = Fills::new(seed);
             let (b, c) = (fills.next_fill(), fills.next_fill());
-            let a = |i: u64| b.word(i).wrapping_add(c.word(i).wrapping_mul(3));
-            let mut sum = 0u64;
-            for _ in 0..passes {
-                for i in 0..words {
-                    sum = sum.wrapping_add(a(i));
-                }
-            }
-            sum.wrapping_add(a(0)).wrapping_add(a(words - 1))
+            output_words_model(fp, unroll, passes, |i| {
+                b.word(i).wrapping_add(c.word(i).wrapping_mul(3))
+            })
         },
     );
 }
@@ -260,10 +277,9 @@ fn triad_checksum() {
 #[test]
 fn stride_checksum() {
     for (fp, stride, loads) in [(8192u64, 64u64, 1000u64), (10_000, 4104, 999), (4096, 8, 3)] {
-        let (fps, ss, ls) = (fp.to_string(), stride.to_string(), loads.to_string());
         check(
             "stride",
-            &[("footprint", &fps), ("stride", &ss), ("loads", &ls)],
+            &[("footprint", &fp), ("stride", &stride), ("loads", &loads)],
             |_| {
                 let f = fp / 8 * 8;
                 let fill = Fills::new(1).next_fill();
@@ -287,10 +303,10 @@ fn gather_checksum() {
     check(
         "gather",
         &[
-            ("footprint", "12000"),
-            ("count", "1001"),
-            ("unroll", "3"),
-            ("seed", "42"),
+            ("footprint", &fp),
+            ("count", &count),
+            ("unroll", &unroll),
+            ("seed", &seed),
         ],
         |_| {
             let words = fp / 8;
@@ -359,19 +375,15 @@ fn hashprobe_checksum() {
         (5000, 90, 100, 300, 8),
         (2048, 10, 0, 200, 200),
     ] {
-        let s: Vec<String> = [fp, load, hit, probes, record]
-            .iter()
-            .map(u64::to_string)
-            .collect();
         check(
             "hashprobe",
             &[
-                ("footprint", &s[0]),
-                ("load", &s[1]),
-                ("hit", &s[2]),
-                ("probes", &s[3]),
-                ("record", &s[4]),
-                ("seed", "11"),
+                ("footprint", &fp),
+                ("load", &load),
+                ("hit", &hit),
+                ("probes", &probes),
+                ("record", &record),
+                ("seed", &11),
             ],
             |_| hashprobe_model(fp, load, hit, probes, 11).0,
         );
@@ -418,17 +430,17 @@ fn hitmiss_model(
 fn hitmiss_checksum() {
     check(
         "hitmiss",
-        &[("footprint", "64K"), ("misses", "3000"), ("hits", "5")],
+        &[("footprint", &"64K"), ("misses", &3000), ("hits", &5)],
         |_| hitmiss_model(64 << 10, 64, 3000, 5, false, 1),
     );
     check(
         "hitmiss",
         &[
-            ("footprint", "10000"),
-            ("spacing", "72"),
-            ("misses", "777"),
-            ("hits", "16"),
-            ("dependent", "true"),
+            ("footprint", &10000),
+            ("spacing", &72),
+            ("misses", &777),
+            ("hits", &16),
+            ("dependent", &"true"),
         ],
         |_| hitmiss_model(10000, 72, 777, 16, true, 1),
     );
@@ -438,38 +450,27 @@ fn hitmiss_checksum() {
 
 #[test]
 fn fill_checksum() {
-    for (fp, elem, unroll, passes) in [
-        (4096u64, 8u64, 4u64, 3u64),
-        (1001, 1, 7, 2),
-        (3000, 2, 3, 1),
-        (5000, 4, 16, 2),
-    ] {
-        let s: Vec<String> = [fp, elem, unroll, passes]
-            .iter()
-            .map(u64::to_string)
-            .collect();
-        check(
-            "fill",
-            &[
-                ("footprint", &s[0]),
-                ("elem", &s[1]),
-                ("unroll", &s[2]),
-                ("passes", &s[3]),
-                ("seed", "8"),
-            ],
-            |_| {
-                let iters = fp / (elem * unroll);
-                let f = Fills::new(8).next_fill();
-                let last = f.word(passes - 1);
-                let v = if elem == 8 {
-                    last
-                } else {
-                    last & ((1u64 << (8 * elem)) - 1)
-                };
-                v.wrapping_mul(2).wrapping_add(iters * unroll * passes)
-            },
-        );
-    }
+    check_elem_cases(
+        "fill",
+        8,
+        &[
+            (4096, 8, 4, 3),
+            (1001, 1, 7, 2),
+            (3000, 2, 3, 1),
+            (5000, 4, 16, 2),
+        ],
+        |fp, elem, unroll, passes| {
+            let iters = fp / (elem * unroll);
+            let f = Fills::new(8).next_fill();
+            let last = f.word(passes - 1);
+            let v = if elem == 8 {
+                last
+            } else {
+                last & ((1u64 << (8 * elem)) - 1)
+            };
+            v.wrapping_mul(2).wrapping_add(iters * unroll * passes)
+        },
+    );
 }
 
 // ---------------------------------------------------------------- branchy
@@ -497,10 +498,9 @@ fn branchy_model(taken: u64, count: u64, seed: u64) -> u64 {
 #[test]
 fn branchy_checksum() {
     for taken in [0u64, 13, 50, 100] {
-        let ts = taken.to_string();
         check(
             "branchy",
-            &[("taken", &ts), ("count", "3000"), ("seed", "4")],
+            &[("taken", &taken), ("count", &3000), ("seed", &4)],
             |_| branchy_model(taken, 3000, 4),
         );
     }
@@ -536,10 +536,14 @@ fn alu_checksum() {
         (8, "add", 5000),
         (5, "mul", 1),
     ] {
-        let (cs, os) = (chains.to_string(), ops.to_string());
         check(
             "alu",
-            &[("chains", &cs), ("op", op), ("ops", &os), ("seed", "2")],
+            &[
+                ("chains", &chains),
+                ("op", &op),
+                ("ops", &ops),
+                ("seed", &2),
+            ],
             |_| alu_model(chains, op == "mul", ops, 2),
         );
     }
@@ -548,10 +552,9 @@ fn alu_checksum() {
 #[test]
 fn divchain_checksum() {
     for (chains, divs) in [(1u64, 100u64), (3, 500), (4, 1)] {
-        let (cs, ds) = (chains.to_string(), divs.to_string());
         check(
             "divchain",
-            &[("chains", &cs), ("divs", &ds), ("seed", "6")],
+            &[("chains", &chains), ("divs", &divs), ("seed", &6)],
             |_| {
                 let mut f = Fills::new(6);
                 let n = f.raw() | 1 << 62;
@@ -593,16 +596,15 @@ fn matmul_checksum() {
     // Tiled and naive orders must give the same C: addition modulo 2^64 is
     // associative and commutative (common practice).
     for (n, rows, tile) in [(7u64, 0u64, 3u64), (12, 5, 4), (16, 0, 16), (9, 9, 2)] {
-        let (ns, rs, ts) = (n.to_string(), rows.to_string(), tile.to_string());
         for variant in ["naive", "tiled"] {
             check(
                 "matmul",
                 &[
-                    ("n", &ns),
-                    ("rows", &rs),
-                    ("tile", &ts),
-                    ("variant", variant),
-                    ("seed", "10"),
+                    ("n", &n),
+                    ("rows", &rows),
+                    ("tile", &tile),
+                    ("variant", &variant),
+                    ("seed", &10),
                 ],
                 |_| matmul_model(n, rows, 10),
             );
@@ -640,17 +642,13 @@ fn stencil_model(rows: usize, cols: usize, sweeps: u64, seed: u64) -> u64 {
 #[test]
 fn stencil_checksum() {
     for (rows, cols, sweeps) in [(3usize, 3usize, 1u64), (10, 17, 3), (20, 8, 4)] {
-        let s: Vec<String> = [rows as u64, cols as u64, sweeps]
-            .iter()
-            .map(u64::to_string)
-            .collect();
         check(
             "stencil",
             &[
-                ("rows", &s[0]),
-                ("cols", &s[1]),
-                ("sweeps", &s[2]),
-                ("seed", "12"),
+                ("rows", &rows),
+                ("cols", &cols),
+                ("sweeps", &sweeps),
+                ("seed", &12),
             ],
             |_| stencil_model(rows, cols, sweeps, 12),
         );

@@ -75,10 +75,10 @@ impl Serial {
 }
 
 /// Feeds every kernel load and store of a workload to a cold serial
-/// hierarchy; returns (L1D accesses, L1D hits).
-fn l1d_counts(name: &str, overrides: &[(&str, &str)], cfg: &HierarchyConfig) -> (u64, u64) {
+/// hierarchy of the default configuration; returns (L1D accesses, L1D hits).
+fn l1d_counts(name: &str, overrides: &[(&str, &str)]) -> (u64, u64) {
     let built = build(name, overrides);
-    let mut s = Serial::new(cfg);
+    let mut s = Serial::new(&HierarchyConfig::default());
     trace_kernel(&built, |d| {
         let kind = match d.class {
             OpClass::Load => AccessKind::Load,
@@ -113,8 +113,7 @@ fn stream_touches_footprint_over_line_size() {
         assert_eq!(distinct_lines("stream", &o, 128), 512, "elem={elem}");
     }
     // On a cold 32 KiB L1D, one pass over 64 KiB misses once per line.
-    let cfg = HierarchyConfig::default();
-    let (accesses, hits) = l1d_counts("stream", &[("footprint", "64K"), ("passes", "1")], &cfg);
+    let (accesses, hits) = l1d_counts("stream", &[("footprint", "64K"), ("passes", "1")]);
     assert_eq!(accesses, 8192);
     assert_eq!(accesses - hits, 1024);
 }
@@ -122,11 +121,9 @@ fn stream_touches_footprint_over_line_size() {
 #[test]
 fn fill_allocates_one_line_per_64_bytes() {
     // Write-allocate: every new line stored to is fetched once (common practice).
-    let cfg = HierarchyConfig::default();
     let (accesses, hits) = l1d_counts(
         "fill",
         &[("footprint", "128K"), ("passes", "1"), ("elem", "8")],
-        &cfg,
     );
     // 16384 stores, then two read-back loads (first and last element).
     assert_eq!(accesses, 16384 + 2);
@@ -153,14 +150,13 @@ fn chase_chains_are_independent() {
     // load was produced by the previous execution of the same static load
     // (its own chain), never by another chain or by ALU work.
     for (k, work) in [(1u64, 0u64), (4, 3), (16, 1)] {
-        let (ks, ws) = (k.to_string(), work.to_string());
         let built = build(
             "chase",
             &[
-                ("footprint", "256K"),
-                ("k", &ks),
-                ("work", &ws),
-                ("hops", "4000"),
+                ("footprint", 256 << 10),
+                ("k", k),
+                ("work", work),
+                ("hops", 4000),
             ],
         );
         let mut last_writer: [Option<(u64, OpClass)>; 32] = [None; 32];
@@ -193,11 +189,7 @@ fn chase_offers_k_misses_at_once() {
     // about k (Chou, Fahs and Abraham, ISCA 2004: average outstanding misses
     // over cycles with at least one).
     for k in [1usize, 2, 4, 8] {
-        let ks = k.to_string();
-        let built = build(
-            "chase",
-            &[("footprint", "4M"), ("k", &ks), ("hops", "2048")],
-        );
+        let built = build("chase", &[("footprint", 4 << 20), ("k", k), ("hops", 2048)]);
         let mut addrs = Vec::new();
         trace_kernel(&built, |d| {
             if d.class == OpClass::Load {
@@ -241,11 +233,9 @@ fn chase_offers_k_misses_at_once() {
 fn hitmiss_misses_once_per_far_load() {
     // Each far load misses (first touch of its granule, one per line); the
     // hot loads hit after the hot array's first touch.
-    let cfg = HierarchyConfig::default();
     let (accesses, hits) = l1d_counts(
         "hitmiss",
         &[("footprint", "1M"), ("misses", "4096"), ("hits", "4")],
-        &cfg,
     );
     assert_eq!(accesses, 4096 * 5);
     // 4096 far lines plus the hot array's first line (4 words = one line).
@@ -260,7 +250,6 @@ fn hashprobe_hit_knob_moves_l1d_hit_rate() {
     // key only walks on through its probe cluster, mostly within the line it
     // already fetched (hits). So more present keys mean more misses per
     // access: the L1D hit rate falls as `hit` rises.
-    let cfg = HierarchyConfig::default();
     let mut rates = Vec::new();
     for hit in ["0", "50", "100"] {
         let (accesses, hits) = l1d_counts(
@@ -271,7 +260,6 @@ fn hashprobe_hit_knob_moves_l1d_hit_rate() {
                 ("hit", hit),
                 ("probes", "3000"),
             ],
-            &cfg,
         );
         rates.push(hits as f64 / accesses as f64);
     }

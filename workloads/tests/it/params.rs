@@ -3,12 +3,7 @@
 use overlap_workloads::{ParamKind, ParamValue, WorkloadError, build, find, list};
 use proptest::prelude::*;
 
-fn ov(pairs: &[(&str, &str)]) -> Vec<(String, String)> {
-    pairs
-        .iter()
-        .map(|(k, v)| ((*k).to_string(), (*v).to_string()))
-        .collect()
-}
+use crate::util::ov;
 
 #[test]
 fn unknown_workload_lists_the_valid_names() {

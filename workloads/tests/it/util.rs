@@ -1,6 +1,8 @@
 //! Shared helpers: an independent SplitMix64 and fill model, and drivers that
 //! run a built workload on the functional model.
 
+use std::fmt::Display;
+
 use overlap_isa::{DynInst, Machine, MachineConfig};
 use overlap_workloads::Built;
 
@@ -67,13 +69,19 @@ pub fn shuffle(v: &mut [u32], rng: &mut SplitMix64) {
     }
 }
 
-/// Builds a workload with `name=value` overrides, panicking on error.
-pub fn build(name: &str, overrides: &[(&str, &str)]) -> Built {
-    let o: Vec<(String, String)> = overrides
+/// Overrides as the crate takes them, `(name, value text)`, from values of
+/// any printable type (`("k", 4)`, `("footprint", "64K")`, or a mix as
+/// `&dyn Display`).
+pub fn ov<V: Display>(pairs: &[(&str, V)]) -> Vec<(String, String)> {
+    pairs
         .iter()
-        .map(|(k, v)| ((*k).to_string(), (*v).to_string()))
-        .collect();
-    overlap_workloads::build(name, &o).unwrap_or_else(|e| panic!("{name}: {e}"))
+        .map(|(k, v)| ((*k).to_string(), v.to_string()))
+        .collect()
+}
+
+/// Builds a workload with `name=value` overrides, panicking on error.
+pub fn build<V: Display>(name: &str, overrides: &[(&str, V)]) -> Built {
+    overlap_workloads::build(name, &ov(overrides)).unwrap_or_else(|e| panic!("{name}: {e}"))
 }
 
 /// Runs to exit; returns the exit code and the dynamic instruction count.
