@@ -10,7 +10,8 @@
 
 use overlap_isa::OpClass;
 use overlap_mem::{
-    CacheConfig, CacheMode, ConfigProblem, DramConfig, HierarchyConfig, PrefetchConfig,
+    BankConfig, CacheConfig, CacheMode, ConfigProblem, DramConfig, HierarchyConfig, PrefetchConfig,
+    PrefetchKind, Replacement,
 };
 use serde::{Deserialize, Serialize};
 use std::fmt;
@@ -297,11 +298,17 @@ impl Config {
 
     /// Parse RON text. Omitted fields take their defaults; unknown fields are errors.
     pub fn from_ron(text: &str) -> Result<Config, ConfigError> {
-        ron::from_str(text).map_err(|e| ConfigError::Parse {
+        // Every field of the patch is optional: let `field: value` stand for `Some(value)`.
+        let options = ron::Options::default()
+            .with_default_extension(ron::extensions::Extensions::IMPLICIT_SOME);
+        let patch: ConfigPatch = options.from_str(text).map_err(|e| ConfigError::Parse {
             line: e.span.start.line,
             column: e.span.start.col,
             message: e.code.to_string(),
-        })
+        })?;
+        let mut config = Config::default();
+        patch.apply(&mut config);
+        Ok(config)
     }
 
     /// Pretty RON text of the whole configuration.
@@ -412,11 +419,13 @@ trait SetField {
     fn set_field(&mut self, field: &str, value: &str) -> Result<(), ConfigError>;
 }
 
-/// Implements [`SetField`] for a struct by listing its fields; each field's
-/// type drives the RON parse, so the list holds names only. A unit test checks
-/// that the list covers every serialised field.
-macro_rules! settable {
-    ($ty:ty { $($field:ident),* $(,)? }) => {
+/// For each configuration section: [`SetField`] (set one field by name from
+/// RON text), and a patch type with every field optional, so a configuration
+/// file may give only the fields that differ from the defaults (a partial
+/// `l2: (mshrs: 32)` keeps every other L2 default). A unit test checks that the
+/// lists cover every serialised field.
+macro_rules! sections {
+    ($($ty:ty => $patch:ident { $($field:ident : $fty:ty),* $(,)? })*) => {$(
         impl SetField for $ty {
             fn set_field(&mut self, field: &str, value: &str) -> Result<(), ConfigError> {
                 let value_err = |e: ron::error::SpannedError| ConfigError::Value {
@@ -433,56 +442,122 @@ macro_rules! settable {
                 }
             }
         }
-    };
+
+        #[derive(Deserialize, Default)]
+        #[serde(deny_unknown_fields)]
+        struct $patch {
+            $(#[serde(default)] $field: Option<$fty>,)*
+        }
+
+        impl $patch {
+            fn apply(self, target: &mut $ty) {
+                $(if let Some(v) = self.$field { target.$field = v; })*
+            }
+        }
+    )*};
 }
 
-settable!(CoreConfig {
-    fetch_width,
-    dispatch_width,
-    issue_width,
-    commit_width,
-    frontend_depth,
-    rob_entries,
-    lq_entries,
-    sq_entries,
-    phys_regs,
-    stations,
-    units,
-    disambiguation,
-    forward_cycles,
-    watchdog_cycles,
-});
-settable!(PredictorConfig {
-    kind,
-    table_bits,
-    history_bits,
-    ras_entries,
-    target_bits
-});
-settable!(CacheConfig {
-    size_bytes,
-    ways,
-    line_bytes,
-    hit_cycles,
-    ports,
-    replacement,
-    seed,
-    mode,
-    mshrs,
-    mshr_targets,
-});
-settable!(DramConfig {
-    latency_cycles,
-    channels,
-    transfer_cycles,
-    banks
-});
-settable!(PrefetchConfig {
-    kind,
-    degree,
-    distance,
-    table_entries
-});
+sections! {
+    CoreConfig => CorePatch {
+        fetch_width: u32,
+        dispatch_width: u32,
+        issue_width: u32,
+        commit_width: u32,
+        frontend_depth: u32,
+        rob_entries: u32,
+        lq_entries: u32,
+        sq_entries: u32,
+        phys_regs: u32,
+        stations: Vec<StationConfig>,
+        units: Vec<UnitConfig>,
+        disambiguation: Disambiguation,
+        forward_cycles: u32,
+        watchdog_cycles: u64,
+    }
+    PredictorConfig => PredictorPatch {
+        kind: PredictorKind,
+        table_bits: u32,
+        history_bits: u32,
+        ras_entries: u32,
+        target_bits: u32,
+    }
+    CacheConfig => CachePatch {
+        size_bytes: u64,
+        ways: u32,
+        line_bytes: u32,
+        hit_cycles: u32,
+        ports: u32,
+        replacement: Replacement,
+        seed: u64,
+        mode: CacheMode,
+        mshrs: u32,
+        mshr_targets: u32,
+    }
+    DramConfig => DramPatch {
+        latency_cycles: u32,
+        channels: u32,
+        transfer_cycles: u32,
+        banks: Option<BankConfig>,
+    }
+    PrefetchConfig => PrefetchPatch {
+        kind: PrefetchKind,
+        degree: u32,
+        distance: u32,
+        table_entries: u32,
+    }
+}
+
+/// A whole configuration file: every section and field optional. An optional
+/// cache given as `Some((...))` is enabled with its level's defaults first.
+#[derive(Deserialize, Default)]
+#[serde(deny_unknown_fields)]
+struct ConfigPatch {
+    #[serde(default)]
+    core: Option<CorePatch>,
+    #[serde(default)]
+    predictor: Option<PredictorPatch>,
+    #[serde(default)]
+    l1i: Option<CachePatch>,
+    #[serde(default)]
+    l1d: Option<CachePatch>,
+    #[serde(default)]
+    l2: Option<CachePatch>,
+    #[serde(default)]
+    l3: Option<CachePatch>,
+    #[serde(default)]
+    dram: Option<DramPatch>,
+    #[serde(default)]
+    prefetch: Option<PrefetchPatch>,
+}
+
+impl ConfigPatch {
+    fn apply(self, c: &mut Config) {
+        if let Some(p) = self.core {
+            p.apply(&mut c.core);
+        }
+        if let Some(p) = self.predictor {
+            p.apply(&mut c.predictor);
+        }
+        if let Some(p) = self.l1i {
+            p.apply(c.l1i.get_or_insert_with(CacheConfig::l1i));
+        }
+        if let Some(p) = self.l1d {
+            p.apply(&mut c.l1d);
+        }
+        if let Some(p) = self.l2 {
+            p.apply(&mut c.l2);
+        }
+        if let Some(p) = self.l3 {
+            p.apply(c.l3.get_or_insert_with(CacheConfig::l3));
+        }
+        if let Some(p) = self.dram {
+            p.apply(&mut c.dram);
+        }
+        if let Some(p) = self.prefetch {
+            p.apply(&mut c.prefetch);
+        }
+    }
+}
 
 fn problem(out: &mut Vec<ConfigProblem>, path: impl Into<String>, message: impl Into<String>) {
     out.push(ConfigProblem {
@@ -835,6 +910,37 @@ mod tests {
             }
         }
         go(&v)
+    }
+
+    #[test]
+    fn a_partial_file_keeps_every_other_default() {
+        let c = Config::from_ron("(l2: (mshrs: 32), core: (rob_entries: 64), l3: Some((ways: 8)))")
+            .unwrap();
+        assert_eq!(
+            c.l2,
+            CacheConfig {
+                mshrs: 32,
+                ..CacheConfig::l2()
+            }
+        );
+        assert_eq!(
+            c.core,
+            CoreConfig {
+                rob_entries: 64,
+                ..CoreConfig::default()
+            }
+        );
+        assert_eq!(
+            c.l3,
+            Some(CacheConfig {
+                ways: 8,
+                ..CacheConfig::l3()
+            })
+        );
+        assert_eq!(c.l1d, CacheConfig::l1d());
+        assert_eq!(Config::from_ron("()").unwrap(), Config::default());
+        let e = Config::from_ron("(l2: (mshr: 32))").unwrap_err();
+        assert!(matches!(e, ConfigError::Parse { line: 1, .. }), "{e}");
     }
 
     #[test]

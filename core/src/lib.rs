@@ -280,8 +280,9 @@ fn build_report(s: &RunSummary, ledger: LedgerReport, counters: Counters) -> Rep
         }),
         host: Host {
             seconds: s.host_seconds,
+            // Every simulated instruction took host time, warm-up included.
             mips: if s.host_seconds > 0.0 {
-                s.instructions as f64 / s.host_seconds / 1e6
+                (s.instructions + s.warmup.map_or(0, |(_, i)| i)) as f64 / s.host_seconds / 1e6
             } else {
                 0.0
             },

@@ -76,7 +76,8 @@ pub struct Warmup {
 pub struct Host {
     /// Wall time of the simulation itself, without loading the program.
     pub seconds: f64,
-    /// Simulated millions of instructions per host second.
+    /// Simulated millions of instructions per host second (warm-up included:
+    /// it was simulated too).
     pub mips: f64,
 }
 

@@ -1,0 +1,161 @@
+//! Bad inputs: each gets a clear message, exit status 2, and leaves no
+//! output file behind.
+
+use crate::util::*;
+
+#[test]
+fn unknown_workload_lists_the_valid_names() {
+    fails_with(
+        &run(&["run", "chsae"]),
+        &["unknown workload `chsae`", "chase", "hitmiss"],
+    );
+    fails_with(
+        &run(&["run", "chase", "--param", "kk=2"]),
+        &["no parameter `kk`", "footprint"],
+    );
+    fails_with(
+        &run(&["run", "missing/file.s"]),
+        &["cannot read 'missing/file.s'"],
+    );
+}
+
+#[test]
+fn unknown_set_path_lists_fields_or_sections() {
+    fails_with(
+        &run(&["run", &scan(), "--set", "core.rob_entrys=64"]),
+        &[
+            "core.rob_entrys",
+            "no field 'rob_entrys'",
+            "rob_entries",
+            "lq_entries",
+        ],
+    );
+    fails_with(
+        &run(&["run", &scan(), "--set", "cache.ways=4"]),
+        &["no section 'cache'", "core", "l1d", "dram"],
+    );
+    fails_with(
+        &run(&["run", &scan(), "--set", "l1d.ways"]),
+        &["--set expects path=value"],
+    );
+}
+
+#[test]
+fn a_value_of_the_wrong_type_names_the_path() {
+    fails_with(
+        &run(&["run", &scan(), "--set", "core.rob_entries=\"many\""]),
+        &["'core.rob_entries'"],
+    );
+    fails_with(
+        &run(&["run", &scan(), "--set", "l1d.mode=Lockup"]),
+        &["'l1d.mode'", "Blocking"],
+    );
+    fails_with(
+        &run(&["run", &scan(), "--set", "l1d.ways=6"]),
+        &["l1d.ways", "6"],
+    );
+}
+
+#[test]
+fn malformed_ron_reports_file_line_and_column() {
+    let dir = tmp();
+    std::fs::write(
+        dir.path().join("bad.ron"),
+        "(\n  core: (\n    rob_entries: 64,\n    robb: 3,\n  ),\n)\n",
+    )
+    .unwrap();
+    fails_with(
+        &run_in(Some(dir.path()), &["run", &scan(), "--config", "bad.ron"]),
+        &["bad.ron:4:", "robb"],
+    );
+    std::fs::write(dir.path().join("cut.ron"), "(\n  l1d: (mshrs: 4\n").unwrap();
+    fails_with(
+        &run_in(Some(dir.path()), &["run", &scan(), "--config", "cut.ron"]),
+        &["cut.ron:2:"],
+    );
+    fails_with(
+        &run_in(
+            Some(dir.path()),
+            &["run", &scan(), "--config", "absent.ron"],
+        ),
+        &["cannot read configuration file 'absent.ron'"],
+    );
+    fails_with(
+        &run(&["run", &scan(), "--config", "speedy"]),
+        &["unknown configuration 'speedy'", "blocking"],
+    );
+}
+
+#[test]
+fn unwritable_out_fails_before_running_and_leaves_nothing() {
+    let dir = tmp();
+    std::fs::write(dir.path().join("plain"), "a file, not a directory").unwrap();
+    for target in ["plain/out.json", "nodir/out.json"] {
+        let o = run_in(
+            Some(dir.path()),
+            &["run", &scan(), "--format", "json", "--out", target],
+        );
+        fails_with(&o, &["cannot write", target]);
+    }
+    let o = run_in(
+        Some(dir.path()),
+        &["compare", &scan(), "--svg", "nodir/x.svg"],
+    );
+    fails_with(&o, &["cannot write 'nodir/x.svg'"]);
+    assert_eq!(files_in(dir.path()), ["plain"]);
+}
+
+#[test]
+fn a_failing_run_leaves_no_output_file() {
+    let dir = tmp();
+    for args in [
+        vec!["run", "chsae", "--out", "r.json"],
+        vec![
+            "run",
+            "chase",
+            "--set",
+            "core.rob_entries=0",
+            "--out",
+            "r.json",
+        ],
+        vec![
+            "compare",
+            "chase",
+            "--set",
+            "l1d.nope=1",
+            "--svg",
+            "c.svg",
+            "--out",
+            "c.txt",
+        ],
+        vec!["report", "chsae", "--html", "r.html"],
+        vec![
+            "sweep",
+            "chase",
+            "--vary",
+            "l1d.mshrs=1,0",
+            "--out",
+            "s.jsonl",
+        ],
+    ] {
+        expect_code(&run_in(Some(dir.path()), &args), 2);
+    }
+    assert!(
+        files_in(dir.path()).is_empty(),
+        "{:?}",
+        files_in(dir.path())
+    );
+}
+
+#[test]
+fn invalid_values_are_all_reported_at_once() {
+    let o = run(&[
+        "run",
+        &scan(),
+        "--set",
+        "core.fetch_width=0",
+        "--set",
+        "core.commit_width=0",
+    ]);
+    fails_with(&o, &["2 problems", "core.fetch_width", "core.commit_width"]);
+}

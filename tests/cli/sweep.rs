@@ -1,0 +1,353 @@
+//! `overlap sweep` and `overlap merge`: the grid, the results file,
+//! resuming after an interruption, shards and plots.
+
+use crate::util::*;
+use std::collections::BTreeMap;
+use std::path::Path;
+
+/// A sweep of 2 x 3 points on the small test program.
+fn grid_args(out: &Path) -> Vec<String> {
+    [
+        "sweep",
+        &scan(),
+        "--vary",
+        "l1d.mshrs=1,4",
+        "--vary",
+        "core.rob_entries=16,32,64",
+        "--jobs",
+        "2",
+        "--out",
+        out.to_str().unwrap(),
+    ]
+    .iter()
+    .map(|s| s.to_string())
+    .collect()
+}
+
+fn run_owned(dir: &Path, args: &[String]) -> std::process::Output {
+    let refs: Vec<&str> = args.iter().map(|s| s.as_str()).collect();
+    run_in(Some(dir), &refs)
+}
+
+/// Lines of a results file as JSON, host figures removed, keyed by index.
+fn points(path: &Path) -> BTreeMap<u64, serde_json::Value> {
+    let text = std::fs::read_to_string(path).unwrap();
+    let mut out = BTreeMap::new();
+    for line in text.lines() {
+        let mut v = json(line);
+        v["report"].as_object_mut().unwrap().remove("host");
+        let i = v["index"].as_u64().unwrap();
+        assert!(
+            out.insert(i, v).is_none(),
+            "point {i} written twice in {}",
+            path.display()
+        );
+    }
+    out
+}
+
+#[test]
+fn grid_runs_every_combination_once() {
+    let dir = tmp();
+    let out = dir.path().join("r.jsonl");
+    let mut args = grid_args(&out);
+    args.extend(["--csv".into(), "r.csv".into()]);
+    let o = run_owned(dir.path(), &args);
+    let table = ok(&o);
+    assert!(table.contains("6 of 6 points"), "{table}");
+    let p = points(&out);
+    assert_eq!(p.keys().copied().collect::<Vec<_>>(), [0, 1, 2, 3, 4, 5]);
+    // Row-major order: the last --vary changes fastest.
+    assert_eq!(p[&1]["point"]["l1d.mshrs"], "1");
+    assert_eq!(p[&1]["point"]["core.rob_entries"], "32");
+    assert_eq!(p[&3]["point"]["l1d.mshrs"], "4");
+    assert_eq!(p[&3]["point"]["core.rob_entries"], "16");
+    for v in p.values() {
+        assert_eq!(v["metrics"]["cycles"], v["report"]["cycles"]);
+    }
+    // Little's law (Little 1961): with one miss register the misses cannot
+    // overlap, so four registers are faster on two independent streams.
+    let cycles = |i: u64| p[&i]["metrics"]["cycles"].as_u64().unwrap();
+    assert!(cycles(5) < cycles(2), "{} vs {}", cycles(5), cycles(2));
+    let csv = std::fs::read_to_string(dir.path().join("r.csv")).unwrap();
+    let lines: Vec<&str> = csv.lines().collect();
+    assert_eq!(lines.len(), 7);
+    assert!(
+        lines[0].starts_with("index,l1d.mshrs,core.rob_entries,program,config,cycles,"),
+        "{}",
+        lines[0]
+    );
+}
+
+#[test]
+fn an_interrupted_sweep_resumes_without_losing_or_repeating_points() {
+    let dir = tmp();
+    let out = dir.path().join("r.jsonl");
+    // First session: stops after 2 points, as if it had been killed.
+    let mut first = grid_args(&out);
+    first.extend(["--max-points".into(), "2".into()]);
+    let o = run_owned(dir.path(), &first);
+    ok(&o);
+    assert!(stderr(&o).contains("--resume"), "{}", stderr(&o));
+    let before = std::fs::read_to_string(&out).unwrap();
+    assert_eq!(before.lines().count(), 2);
+    // The kill happened in the middle of writing a third line.
+    let partial = &before.lines().next().unwrap()[..80];
+    std::fs::write(&out, format!("{before}{partial}")).unwrap();
+    // Without --resume the file is left alone.
+    let o = run_owned(dir.path(), &grid_args(&out));
+    fails_with(&o, &["already exists", "--resume"]);
+    // Second session resumes.
+    let mut again = grid_args(&out);
+    again.push("--resume".into());
+    let o = run_owned(dir.path(), &again);
+    ok(&o);
+    assert!(
+        stderr(&o).contains("incomplete last line"),
+        "{}",
+        stderr(&o)
+    );
+    let after = std::fs::read_to_string(&out).unwrap();
+    assert!(
+        after.starts_with(&before),
+        "finished points are kept as written"
+    );
+    assert!(after.ends_with('\n'));
+    assert_eq!(
+        points(&out).keys().copied().collect::<Vec<_>>(),
+        [0, 1, 2, 3, 4, 5]
+    );
+    // A complete file resumes to nothing new.
+    let o = run_owned(dir.path(), &again);
+    ok(&o);
+    assert_eq!(std::fs::read_to_string(&out).unwrap(), after);
+}
+
+#[test]
+fn a_killed_sweep_resumes_without_losing_or_repeating_points() {
+    let dir = tmp();
+    let out = dir.path().join("r.jsonl");
+    let args: Vec<String> = [
+        "sweep",
+        "chase",
+        "--param",
+        "hops=60000",
+        "--vary",
+        "l1d.mshrs=1,2,3,4,5,6,7,8",
+        "--jobs",
+        "1",
+        "--out",
+        out.to_str().unwrap(),
+    ]
+    .iter()
+    .map(|s| s.to_string())
+    .collect();
+    let mut child = bin()
+        .args(&args)
+        .current_dir(dir.path())
+        .stdout(std::process::Stdio::null())
+        .stderr(std::process::Stdio::null())
+        .spawn()
+        .unwrap();
+    let deadline = std::time::Instant::now() + std::time::Duration::from_secs(60);
+    loop {
+        let lines = std::fs::read_to_string(&out)
+            .map(|t| t.lines().count())
+            .unwrap_or(0);
+        if lines >= 1 || std::time::Instant::now() > deadline {
+            break;
+        }
+        std::thread::sleep(std::time::Duration::from_millis(5));
+    }
+    let _ = child.kill();
+    let _ = child.wait();
+    let kept = std::fs::read_to_string(&out).unwrap_or_default();
+    let complete: String = kept
+        .split_inclusive('\n')
+        .filter(|l| l.ends_with('\n'))
+        .collect();
+    let mut again = args.clone();
+    again.push("--resume".into());
+    ok(&run_owned(dir.path(), &again));
+    let after = std::fs::read_to_string(&out).unwrap();
+    assert!(
+        after.starts_with(&complete),
+        "points finished before the kill are kept"
+    );
+    assert_eq!(
+        points(&out).keys().copied().collect::<Vec<_>>(),
+        (0..8).collect::<Vec<u64>>()
+    );
+}
+
+#[test]
+fn merged_shards_equal_the_whole_sweep() {
+    let dir = tmp();
+    let whole = dir.path().join("whole.jsonl");
+    ok(&run_owned(dir.path(), &grid_args(&whole)));
+    for shard in ["0/2", "1/2"] {
+        let path = dir.path().join(format!("shard{}.jsonl", &shard[..1]));
+        let mut args = grid_args(&path);
+        args.extend(["--shard".into(), shard.into()]);
+        ok(&run_owned(dir.path(), &args));
+    }
+    let s0 = points(&dir.path().join("shard0.jsonl"));
+    assert_eq!(s0.keys().copied().collect::<Vec<_>>(), [0, 2, 4]);
+    // Merge with a duplicate input: duplicates are dropped.
+    let o = run_in(
+        Some(dir.path()),
+        &[
+            "merge",
+            "shard1.jsonl",
+            "shard0.jsonl",
+            "shard1.jsonl",
+            "--out",
+            "all.jsonl",
+        ],
+    );
+    ok(&o);
+    let merged = points(&dir.path().join("all.jsonl"));
+    assert_eq!(merged, points(&whole));
+    let text = std::fs::read_to_string(dir.path().join("all.jsonl")).unwrap();
+    let order: Vec<u64> = text
+        .lines()
+        .map(|l| json(l)["index"].as_u64().unwrap())
+        .collect();
+    assert_eq!(order, [0, 1, 2, 3, 4, 5]);
+}
+
+#[test]
+fn results_of_another_sweep_are_refused() {
+    let dir = tmp();
+    let out = dir.path().join("r.jsonl");
+    ok(&run_owned(dir.path(), &grid_args(&out)));
+    let before = std::fs::read_to_string(&out).unwrap();
+    let o = run_in(
+        Some(dir.path()),
+        &[
+            "sweep",
+            &scan(),
+            "--vary",
+            "l1d.mshrs=1,2",
+            "--out",
+            "r.jsonl",
+            "--resume",
+        ],
+    );
+    fails_with(&o, &["different sweep"]);
+    assert_eq!(std::fs::read_to_string(&out).unwrap(), before);
+    // And merge refuses to mix them.
+    ok(&run_in(
+        Some(dir.path()),
+        &[
+            "sweep",
+            &scan(),
+            "--vary",
+            "l1d.mshrs=1,2",
+            "--out",
+            "other.jsonl",
+        ],
+    ));
+    let o = run_in(
+        Some(dir.path()),
+        &["merge", "r.jsonl", "other.jsonl", "--out", "m.jsonl"],
+    );
+    fails_with(&o, &["different sweeps"]);
+    assert!(!dir.path().join("m.jsonl").exists());
+}
+
+#[test]
+fn a_damaged_line_in_the_middle_is_an_error() {
+    let dir = tmp();
+    let out = dir.path().join("r.jsonl");
+    ok(&run_owned(dir.path(), &grid_args(&out)));
+    let text = std::fs::read_to_string(&out).unwrap();
+    let mut lines: Vec<&str> = text.lines().collect();
+    lines[2] = "{not json";
+    std::fs::write(&out, lines.join("\n") + "\n").unwrap();
+    let mut args = grid_args(&out);
+    args.push("--resume".into());
+    fails_with(
+        &run_owned(dir.path(), &args),
+        &["r.jsonl:3:", "not a sweep result line"],
+    );
+}
+
+#[test]
+fn svg_plots_one_line_per_series_value() {
+    let dir = tmp();
+    let o = run_in(
+        Some(dir.path()),
+        &[
+            "sweep",
+            &scan(),
+            "--vary",
+            "l1d.mshrs=1,2,4",
+            "--vary",
+            "param.missing=1",
+            "--svg",
+            "p.svg",
+        ],
+    );
+    // A file program takes no workload parameters.
+    fails_with(&o, &["--param applies to built-in workloads only"]);
+    assert!(!dir.path().join("p.svg").exists());
+    let o = run_in(
+        Some(dir.path()),
+        &[
+            "sweep",
+            "chase",
+            "--param",
+            "hops=4000",
+            "--vary",
+            "param.k=1,4",
+            "--vary",
+            "l1d.mshrs=1,2,4",
+            "--svg",
+            "p.svg",
+            "--metric",
+            "l1d_mlp",
+            "--x",
+            "l1d.mshrs",
+            "--series",
+            "param.k",
+        ],
+    );
+    ok(&o);
+    let text = std::fs::read_to_string(dir.path().join("p.svg")).unwrap();
+    let doc = xml(&text);
+    let series: Vec<&str> = doc
+        .descendants()
+        .filter(|n| n.attribute("class") == Some("series"))
+        .map(|n| n.attribute("data-series").unwrap())
+        .collect();
+    assert_eq!(series, ["param.k=1", "param.k=4"]);
+    for s in doc
+        .descendants()
+        .filter(|n| n.attribute("class") == Some("series"))
+    {
+        let values: Vec<f64> = s
+            .descendants()
+            .filter(|n| n.attribute("class") == Some("point"))
+            .map(|n| n.attribute("data-value").unwrap().parse().unwrap())
+            .collect();
+        assert_eq!(values.len(), 3);
+        // Source: DESIGN.md §5: with one miss register at most one miss is outstanding.
+        assert!((values[0] - 1.0).abs() < 1e-9, "{values:?}");
+        assert!(values.iter().all(|&v| v <= 4.0 + 1e-9), "{values:?}");
+    }
+    let o = run_in(
+        Some(dir.path()),
+        &[
+            "sweep",
+            "chase",
+            "--vary",
+            "l1d.mshrs=1,2",
+            "--svg",
+            "q.svg",
+            "--x",
+            "core.rob_entries",
+        ],
+    );
+    fails_with(&o, &["--x core.rob_entries", "not a varied path"]);
+}
