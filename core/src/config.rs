@@ -304,7 +304,7 @@ impl Config {
         let patch: ConfigPatch = options.from_str(text).map_err(|e| ConfigError::Parse {
             line: e.span.start.line,
             column: e.span.start.col,
-            message: e.code.to_string(),
+            message: user_words(&e.code.to_string()),
         })?;
         let mut config = Config::default();
         patch.apply(&mut config);
@@ -366,6 +366,9 @@ impl Config {
             message: e.code.to_string(),
         };
         match (section, field) {
+            ("core", Some(f)) if f.starts_with("stations.") || f.starts_with("units.") => {
+                self.core.set_list_field(f, value)
+            }
             ("core", Some(f)) => self.core.set_field(f, value),
             ("predictor", Some(f)) => self.predictor.set_field(f, value),
             ("l1d", Some(f)) => self.l1d.set_field(f, value),
@@ -411,6 +414,62 @@ impl Config {
             },
             other => other,
         })
+    }
+}
+
+/// The parser names the internal patch types; say what the user wrote instead.
+fn user_words(message: &str) -> String {
+    [
+        ("`ConfigPatch`", "the configuration"),
+        ("`CorePatch`", "`core`"),
+        ("`PredictorPatch`", "`predictor`"),
+        ("`CachePatch`", "a cache section"),
+        ("`DramPatch`", "`dram`"),
+        ("`PrefetchPatch`", "`prefetch`"),
+    ]
+    .iter()
+    .fold(message.to_string(), |m, (from, to)| m.replace(from, to))
+}
+
+impl CoreConfig {
+    /// Set one field of one station or unit: `stations.1.entries`, `units.3.latency`.
+    fn set_list_field(&mut self, path: &str, value: &str) -> Result<(), ConfigError> {
+        let bad_path = || ConfigError::UnknownPath {
+            path: path.to_string(),
+        };
+        let mut parts = path.splitn(3, '.');
+        let (Some(list), Some(index), Some(field)) = (parts.next(), parts.next(), parts.next())
+        else {
+            return Err(bad_path());
+        };
+        let index: usize = index.parse().map_err(|_| bad_path())?;
+        let value_err = |e: ron::error::SpannedError| ConfigError::Value {
+            path: path.to_string(),
+            value: value.to_string(),
+            message: e.code.to_string(),
+        };
+        match list {
+            "stations" => {
+                let s = self.stations.get_mut(index).ok_or_else(bad_path)?;
+                match field {
+                    "name" => s.name = ron::from_str(value).map_err(value_err)?,
+                    "entries" => s.entries = ron::from_str(value).map_err(value_err)?,
+                    "accepts" => s.accepts = ron::from_str(value).map_err(value_err)?,
+                    _ => return Err(bad_path()),
+                }
+            }
+            _ => {
+                let u = self.units.get_mut(index).ok_or_else(bad_path)?;
+                match field {
+                    "class" => u.class = ron::from_str(value).map_err(value_err)?,
+                    "count" => u.count = ron::from_str(value).map_err(value_err)?,
+                    "latency" => u.latency = ron::from_str(value).map_err(value_err)?,
+                    "pipelined" => u.pipelined = ron::from_str(value).map_err(value_err)?,
+                    _ => return Err(bad_path()),
+                }
+            }
+        }
+        Ok(())
     }
 }
 
@@ -941,6 +1000,9 @@ mod tests {
         assert_eq!(Config::from_ron("()").unwrap(), Config::default());
         let e = Config::from_ron("(l2: (mshr: 32))").unwrap_err();
         assert!(matches!(e, ConfigError::Parse { line: 1, .. }), "{e}");
+        assert!(!e.to_string().contains("Patch"), "{e}");
+        let c = Config::from_ron("(dram: (banks: Some((banks: 4))))").unwrap();
+        assert_eq!(c.dram.banks.unwrap().banks, 4);
     }
 
     #[test]
@@ -963,6 +1025,18 @@ mod tests {
             matches!(e, ConfigError::Value { ref path, .. } if path == "core.rob_entries"),
             "{e}"
         );
+        c.set("core.stations.1.entries", "16").unwrap();
+        assert_eq!(c.core.stations[1].entries, 16);
+        c.set("core.units.3.latency", "30").unwrap();
+        assert_eq!(c.core.units[3].latency, 30);
+        assert!(matches!(
+            c.set("core.stations.9.entries", "1"),
+            Err(ConfigError::UnknownPath { .. })
+        ));
+        assert!(matches!(
+            c.set("core.units.0.speed", "1"),
+            Err(ConfigError::UnknownPath { .. })
+        ));
         c.set("l3.size_bytes", "4194304").unwrap();
         assert_eq!(c.l3.as_ref().unwrap().size_bytes, 4 << 20);
     }

@@ -124,6 +124,9 @@ impl fmt::Display for DeadlockDump {
         )?;
         writeln!(f, "front end: {}", self.front_end)?;
         writeln!(f, "oldest instructions in the window:")?;
+        if self.oldest.is_empty() {
+            writeln!(f, "  none: the window is empty")?;
+        }
         for line in &self.oldest {
             writeln!(f, "  {line}")?;
         }

@@ -252,6 +252,24 @@ impl<O: Observer> Pipeline<'_, O> {
         {
             return;
         }
+        // Store coalescing: a store to the line that the store just before it is
+        // still writing joins that write instead of asking the cache again
+        // (common practice for store buffers; it spares miss-register targets).
+        if si > self.sq.ring.head {
+            let line = u64::from(self.cfg.l1d.line_bytes);
+            let prev = *self.sq.ring.get(si - 1);
+            let last_byte = s.addr + u64::from(s.size) - 1;
+            let same_line = prev.addr / line == s.addr / line && last_byte / line == s.addr / line;
+            if same_line && prev.written_at > now {
+                let e = self.sq.ring.get_mut(si);
+                e.merged_into = Some(prev.merged_into.unwrap_or(prev.seq));
+                e.written_at = prev.written_at;
+                e.refused = None;
+                self.sq.sent += 1;
+                self.active = true;
+                return;
+            }
+        }
         let req = Request {
             id: s.seq,
             kind: AccessKind::Store,

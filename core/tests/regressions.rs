@@ -104,3 +104,17 @@ fn stores_retired_before_exit_still_reach_the_cache() {
         r.waiting
     );
 }
+
+#[test]
+fn consecutive_stores_to_one_line_coalesce_into_one_write() {
+    // Eight 8-byte stores fill each new line; the store queue merges each run into one
+    // write, so no miss register runs out of targets and misses to different lines overlap.
+    let body = "    sd s11, 0(a0)\n    sd s11, 8(a0)\n    sd s11, 16(a0)\n    sd s11, 24(a0)\n    addi a0, a0, 32\n";
+    let src = looped(512, body).replace("_start:\n", "_start:\n    la a0, buf\n")
+        + "    .data\n    .balign 64\nbuf:\n    .space 16448\n";
+    let r = same_either_way(&preset("miss-under-miss"), &src);
+    let l1d = &r.caches["l1d"];
+    assert_eq!((l1d.refused_targets, l1d.merged), (0, 0), "{l1d:?}");
+    assert_eq!(l1d.misses, 256);
+    assert!(r.mlp.l1d > 2.0, "{:?}", r.mlp);
+}

@@ -98,7 +98,7 @@ impl Default for MachineConfig {
 pub enum ExecError {
     /// The program image or the stack could not be mapped.
     #[error("cannot load the program: {0}")]
-    Load(#[source] MemError),
+    Load(MemError),
     /// `step` after the program exited.
     #[error("the program has already exited")]
     Halted,
@@ -140,12 +140,12 @@ pub enum ExecError {
     },
     /// The instruction at the pc is not an RV64IMC instruction this model
     /// executes. The message names the pc and the encoding in hex.
-    #[error("illegal instruction at pc {pc:#x}: {source}")]
+    #[error("illegal instruction at pc {pc:#x}: {cause}")]
     IllegalInstruction {
         /// The pc.
         pc: u64,
-        /// What the decoder said.
-        source: DecodeError,
+        /// What the decoder said (part of the message, not a separate source).
+        cause: DecodeError,
     },
     /// The pc is outside every mapped region.
     #[error("instruction fetch from unmapped address {pc:#x}")]
@@ -169,14 +169,15 @@ pub enum ExecError {
         pc: u64,
     },
     /// A load, store or system call touched memory it may not.
-    #[error("{what} at pc {pc:#x}: {source}")]
+    #[error("{what} at pc {pc:#x}: {cause}")]
     Memory {
         /// `load`, `store` or `write system call`.
         what: &'static str,
         /// The pc of the instruction.
         pc: u64,
-        /// What the memory said.
-        source: MemError,
+        /// What the memory said (part of this error's message, so not a
+        /// separate source in the error chain).
+        cause: MemError,
     },
 }
 
@@ -459,15 +460,15 @@ impl Machine {
                 *taken = true;
             }
         };
-        let load_err = |source| ExecError::Memory {
+        let load_err = |cause| ExecError::Memory {
             what: "load",
             pc,
-            source,
+            cause,
         };
-        let store_err = |source| ExecError::Memory {
+        let store_err = |cause| ExecError::Memory {
             what: "store",
             pc,
-            source,
+            cause,
         };
 
         // Source: RISC-V unprivileged spec, RV32I, RV64I and M chapters, for
@@ -718,16 +719,16 @@ impl Machine {
 
     /// Decodes the instruction at `pc`, which lies in the active text table.
     fn decode_at(&self, pc: u64) -> Result<Inst, ExecError> {
-        let fetch_err = |source| ExecError::Memory {
+        let fetch_err = |cause| ExecError::Memory {
             what: "instruction fetch",
             pc,
-            source,
+            cause,
         };
         let low = self.mem.read_u16(pc).map_err(fetch_err)?;
         // Low bits other than 11: a 16-bit compressed instruction.
         if low & 3 != 3 {
             return decode_compressed(low)
-                .map_err(|source| ExecError::IllegalInstruction { pc, source });
+                .map_err(|cause| ExecError::IllegalInstruction { pc, cause });
         }
         if pc + 4 > self.active_base + self.active_size_bytes {
             let region = self.mem.region_at(pc + 2).map(|r| r.name.clone());
@@ -737,7 +738,7 @@ impl Machine {
             });
         }
         let word = u32::from(low) | u32::from(self.mem.read_u16(pc + 2).map_err(fetch_err)?) << 16;
-        decode(word).map_err(|source| ExecError::IllegalInstruction { pc, source })
+        decode(word).map_err(|cause| ExecError::IllegalInstruction { pc, cause })
     }
 
     /// Drops decoded entries that a store to `[addr, addr + size)` overlaps.
@@ -774,10 +775,10 @@ impl Machine {
             }
             SYS_WRITE => {
                 let (buf, len) = (self.regs[11], self.regs[12]);
-                let mem_err = |source| ExecError::Memory {
+                let mem_err = |cause| ExecError::Memory {
                     what: "write system call",
                     pc,
-                    source,
+                    cause,
                 };
                 let captured = (self.stdout.len() + self.stderr.len()) as u64;
                 let cap = self.mem.cap_bytes();

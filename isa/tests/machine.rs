@@ -154,7 +154,7 @@ fn system_call_errors() {
     assert!(matches!(
         m.run(),
         Err(ExecError::Memory {
-            source: MemError::Unmapped { addr: 0, .. },
+            cause: MemError::Unmapped { addr: 0, .. },
             ..
         })
     ));
@@ -174,11 +174,11 @@ fn ebreak_and_illegal_instructions_name_the_pc() {
     p.segments[0].mem_size += 4;
     let mut m = Machine::new(&p, MachineConfig::default()).unwrap();
     match m.run().unwrap_err() {
-        ExecError::IllegalInstruction { pc, source } => {
+        ExecError::IllegalInstruction { pc, cause } => {
             assert_eq!(pc, TEXT_BASE + 4);
             // The low halfword is an all-zero 16-bit parcel, reserved by the
             // C extension chapter.
-            assert_eq!(source.kind, DecodeErrorKind::Reserved);
+            assert_eq!(cause.kind, DecodeErrorKind::Reserved);
         }
         e => panic!("unexpected {e}"),
     }
@@ -284,7 +284,7 @@ fn stack_pointer_and_stack_region() {
         m.step(),
         Err(ExecError::Memory {
             what: "load",
-            source: MemError::Unmapped { .. },
+            cause: MemError::Unmapped { .. },
             ..
         })
     ));
@@ -304,7 +304,7 @@ fn load_and_store_faults_leave_state_unchanged() {
     m.step().unwrap();
     let e = m.step().unwrap_err();
     assert!(
-        matches!(&e, ExecError::Memory { what: "store", source: MemError::ReadOnly { region, .. }, .. } if region == ".text"),
+        matches!(&e, ExecError::Memory { what: "store", cause: MemError::ReadOnly { region, .. }, .. } if region == ".text"),
         "{e}"
     );
 }
@@ -400,7 +400,7 @@ fn memory_cap_stops_a_runaway_program() {
             e,
             ExecError::Memory {
                 what: "store",
-                source: MemError::CapExceeded { cap_bytes: 262_144 },
+                cause: MemError::CapExceeded { cap_bytes: 262_144 },
                 ..
             }
         ),

@@ -259,9 +259,10 @@ pub const MAX_TARGETS: u32 = 1024;
 /// Largest accepted prefetch `degree`.
 pub const MAX_PREFETCH_DEGREE: u32 = 64;
 
-/// DRAM banks with an open-row policy, per channel.
+/// DRAM banks with an open-row policy, per channel. Omitted fields take
+/// their defaults.
 #[derive(Debug, Clone, PartialEq, Eq, Serialize, Deserialize)]
-#[serde(deny_unknown_fields)]
+#[serde(deny_unknown_fields, default)]
 pub struct BankConfig {
     /// Banks per channel.
     pub banks: u32,
