@@ -43,7 +43,8 @@ pub struct ProgramArgs {
 /// How to run: limits, stepping and the measured region.
 #[derive(Args, Debug, Clone, Default)]
 pub struct RunArgs {
-    /// Stop after this many instructions (the report is marked truncated).
+    /// Stop after this many instructions, counted from the program's start
+    /// (set-up included); the report is marked truncated.
     #[arg(long, value_name = "N")]
     pub max_insts: Option<u64>,
     /// Simulate every cycle instead of jumping over idle stretches (the
@@ -94,8 +95,9 @@ pub enum Command {
     /// Run one program on several configurations in parallel (default: the
     /// three presets) and compare them side by side.
     Compare {
-        /// Program (default: hitmiss with 8 hits after each independent miss, where
-        /// the three presets differ clearly).
+        /// A built-in workload name, an assembly file (.s) or an RV64 ELF
+        /// executable (default: hitmiss with 8 hits after each independent
+        /// miss, where the three presets differ clearly).
         program: Option<String>,
         #[command(flatten)]
         program_args: ProgramArgs,
@@ -121,9 +123,12 @@ pub enum Command {
         /// Result files written by `overlap sweep --out`.
         #[arg(required = true)]
         inputs: Vec<PathBuf>,
-        /// The merged file.
+        /// The merged file (not overwritten unless --force).
         #[arg(long, value_name = "FILE")]
         out: PathBuf,
+        /// Replace --out if it exists.
+        #[arg(long)]
+        force: bool,
     },
     /// Record a baseline: every entry of a suite on every configuration.
     Baseline {
@@ -230,7 +235,7 @@ pub fn dispatch(cli: Cli) -> Result<ExitCode> {
             svg.as_deref(),
         ),
         Command::Sweep(args) => cmd::sweep::sweep(&args),
-        Command::Merge { inputs, out } => cmd::sweep::merge(&inputs, &out),
+        Command::Merge { inputs, out, force } => cmd::sweep::merge(&inputs, &out, force),
         Command::Baseline {
             suite,
             config,

@@ -19,6 +19,29 @@ pub struct NamedConfig {
     pub label: String,
     /// The machine.
     pub config: Config,
+    /// The `--set` overrides applied to it, in order, as `path=value`.
+    pub sets: Vec<String>,
+}
+
+impl NamedConfig {
+    /// The label followed by every override, for titles:
+    /// `miss-under-miss +l1d.mode=Blocking`.
+    pub fn described(&self) -> String {
+        let mut s = self.label.clone();
+        for o in &self.sets {
+            s.push_str(" +");
+            s.push_str(o);
+        }
+        s
+    }
+}
+
+/// The overrides as one phrase for a note line: `--set a=1 --set b=2`.
+pub fn sets_phrase(sets: &[String]) -> String {
+    sets.iter()
+        .map(|s| format!("--set {s}"))
+        .collect::<Vec<_>>()
+        .join(" ")
 }
 
 /// One `--set path=value`, split.
@@ -28,6 +51,13 @@ pub struct Override {
     pub path: String,
     /// RON text of the value.
     pub value: String,
+}
+
+impl Override {
+    /// `path=value`.
+    pub fn text(&self) -> String {
+        format!("{}={}", self.path, self.value)
+    }
 }
 
 /// Split `path=value` (the value may itself contain `=`).
@@ -52,6 +82,7 @@ pub fn load(spec: &str) -> Result<NamedConfig> {
         return Ok(NamedConfig {
             label: spec.to_string(),
             config,
+            sets: Vec::new(),
         });
     }
     let path = Path::new(spec);
@@ -75,13 +106,17 @@ pub fn load(spec: &str) -> Result<NamedConfig> {
     let label = path
         .file_stem()
         .map_or(spec.to_string(), |s| s.to_string_lossy().into_owned());
-    Ok(NamedConfig { label, config })
+    Ok(NamedConfig {
+        label,
+        config,
+        sets: Vec::new(),
+    })
 }
 
 /// Apply one override, with an error that helps fix it.
 pub fn apply(config: &mut Config, o: &Override) -> Result<()> {
     config.set(&o.path, &o.value).map_err(|e| match e {
-        ConfigError::UnknownPath { .. } => anyhow!("{}", unknown_path_message(&o.path)),
+        ConfigError::UnknownPath { .. } => anyhow!("{}", unknown_path_message(config, &o.path)),
         ConfigError::Value {
             path,
             value,
@@ -97,6 +132,7 @@ pub fn apply(config: &mut Config, o: &Override) -> Result<()> {
 pub fn finish(mut named: NamedConfig, overrides: &[Override]) -> Result<NamedConfig> {
     for o in overrides {
         apply(&mut named.config, o)?;
+        named.sets.push(o.text());
     }
     named
         .config
@@ -155,13 +191,20 @@ pub fn sections() -> Vec<(String, Vec<String>)> {
 }
 
 /// "unknown field 'x' in section 'core'; its fields: ..." or
-/// "unknown section 'x'; sections: ...".
-pub fn unknown_path_message(path: &str) -> String {
+/// "unknown section 'x'; sections: ...", or for a station or unit of `config`
+/// by index (`core.stations.1.entries`), how many there are and their fields.
+pub fn unknown_path_message(config: &Config, path: &str) -> String {
     let all = sections();
     let (section, field) = match path.split_once('.') {
         Some((s, f)) => (s, Some(f)),
         None => (path, None),
     };
+    if section == "core"
+        && let Some(f) = field
+        && let Some(msg) = list_path_message(config, path, f)
+    {
+        return msg;
+    }
     match all.iter().find(|(s, _)| s == section) {
         Some((s, fields)) => match field {
             Some(f) => format!(
@@ -178,4 +221,34 @@ pub fn unknown_path_message(path: &str) -> String {
                 .join(", ")
         ),
     }
+}
+
+/// For `core.stations.I.FIELD` and `core.units.I.FIELD`: the number of
+/// entries of the list in `config` and the fields of one entry.
+fn list_path_message(config: &Config, path: &str, field: &str) -> Option<String> {
+    let (list, rest) = field.split_once('.')?;
+    if list != "stations" && list != "units" {
+        return None;
+    }
+    let value = serde_json::to_value(&config.core).ok()?;
+    let items = value.get(list)?.as_array()?;
+    let fields: Vec<String> = match items.first() {
+        Some(serde_json::Value::Object(m)) => m.keys().cloned().collect(),
+        _ => Vec::new(),
+    };
+    let (index, name) = rest.split_once('.').unwrap_or((rest, ""));
+    let range = match items.len() {
+        0 => "none".to_string(),
+        n => format!("indices 0..={}", n - 1),
+    };
+    let what = match index.parse::<usize>() {
+        Ok(i) if i < items.len() => format!("core.{list}.{i} has no field '{name}'"),
+        Ok(i) => format!("there is no core.{list}.{i}"),
+        Err(_) => format!("'{index}' is not an index"),
+    };
+    Some(format!(
+        "unknown configuration path '{path}': {what}; this configuration has {} {list} ({range}), each with the fields {}",
+        items.len(),
+        fields.join(", ")
+    ))
 }

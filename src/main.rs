@@ -32,8 +32,11 @@ fn main() -> ExitCode {
     }
 }
 
-/// Log to standard error: `RUST_LOG` when set, else by `-v` count.
+/// Log to standard error: `RUST_LOG` when set, else by `-v` count. Colours
+/// only when standard error is a terminal, so a log redirected to a file
+/// holds plain text.
 fn init_logging(verbose: u8) {
+    use std::io::IsTerminal;
     use tracing_subscriber::EnvFilter;
     let filter = match std::env::var("RUST_LOG") {
         Ok(spec) if !spec.is_empty() => EnvFilter::new(spec),
@@ -47,6 +50,7 @@ fn init_logging(verbose: u8) {
     tracing_subscriber::fmt()
         .with_env_filter(filter)
         .with_writer(std::io::stderr)
+        .with_ansi(std::io::stderr().is_terminal())
         .with_target(false)
         .init();
 }

@@ -151,28 +151,37 @@ pub struct PipeRow {
 }
 
 /// Records fetch, dispatch, issue, complete and commit cycles of the
-/// instructions in flight during a window, up to `max_rows` of them.
+/// instructions in flight during a window, up to `max_rows` of them, and
+/// counts the others.
 #[derive(Clone, Debug)]
 pub struct Pipeline {
     window: Window,
     in_flight: VecDeque<InFlight>,
     /// Recorded instructions, in program order.
     pub rows: Vec<PipeRow>,
-    max_rows: usize,
+    /// `None`: record nothing, count nothing.
+    max_rows: Option<usize>,
     /// Instructions of the window not recorded because `max_rows` was reached.
     pub dropped: u64,
 }
 
 impl Pipeline {
-    /// A recorder for `len` cycles from `start`, keeping at most `max_rows` rows.
-    pub fn new(start: WindowStart, len: u64, max_rows: usize) -> Pipeline {
+    /// A recorder for `len` cycles from `start`, keeping at most `max_rows`
+    /// rows (and counting every instruction of the window, shown or not);
+    /// with `None` it tracks nothing at all.
+    pub fn new(start: WindowStart, len: u64, max_rows: Option<usize>) -> Pipeline {
         Pipeline {
             window: Window::new(start, len),
-            in_flight: VecDeque::with_capacity(256),
+            in_flight: VecDeque::with_capacity(if max_rows.is_some() { 256 } else { 0 }),
             rows: Vec::new(),
             max_rows,
             dropped: 0,
         }
+    }
+
+    /// Instructions in flight during the window: shown plus not shown.
+    pub fn in_window(&self) -> u64 {
+        self.rows.len() as u64 + self.dropped
     }
 
     fn slot(&mut self, seq: u64) -> Option<&mut InFlight> {
@@ -183,7 +192,7 @@ impl Pipeline {
 
 impl Observer for Pipeline {
     fn fetch(&mut self, cycle: u64, seq: u64, inst: &DynInst) {
-        if self.max_rows == 0 {
+        if self.max_rows.is_none() {
             return; // Nothing to record: track nothing.
         }
         if let Some(end) = self.window.end()
@@ -236,7 +245,7 @@ impl Observer for Pipeline {
         if cycle < from || f.fetch >= end {
             return;
         }
-        if self.rows.len() >= self.max_rows {
+        if self.rows.len() >= self.max_rows.unwrap_or(0) {
             self.dropped += 1;
             return;
         }
@@ -310,6 +319,51 @@ mod tests {
             l1d_misses: l1d,
             dram_reads: l1d,
         }
+    }
+
+    /// `addi x0, x0, 0` at `pc`.
+    fn inst(pc: u64) -> DynInst {
+        let inst = overlap_isa::decode(0x0000_0013).expect("nop decodes");
+        DynInst {
+            pc,
+            inst,
+            class: inst.op.class(),
+            srcs: [overlap_isa::Reg(0); 2],
+            dst: None,
+            mem_addr: 0,
+            mem_size: 0,
+            taken: false,
+            next_pc: pc + 4,
+        }
+    }
+
+    /// Feed instructions `0..n`, one fetched per cycle and retired 10
+    /// cycles later, to `p`.
+    fn feed(p: &mut Pipeline, n: u64) {
+        for seq in 0..n {
+            p.fetch(seq, seq, &inst(0x1000 + 4 * seq));
+        }
+        for seq in 0..n {
+            p.commit(seq + 10, seq, &inst(0x1000 + 4 * seq));
+        }
+    }
+
+    #[test]
+    fn the_count_in_the_window_does_not_depend_on_the_row_limit() {
+        let counts: Vec<u64> = [0, 1, 5, 1000]
+            .into_iter()
+            .map(|rows| {
+                let mut p = Pipeline::new(WindowStart::Cycle(20), 10, Some(rows));
+                feed(&mut p, 100);
+                assert_eq!(p.rows.len(), rows.min(p.in_window() as usize));
+                p.in_window()
+            })
+            .collect();
+        // Retired in 20..: fetched before the window end 30: seqs 10..=29.
+        assert_eq!(counts, [20, 20, 20, 20]);
+        let mut off = Pipeline::new(WindowStart::Cycle(20), 10, None);
+        feed(&mut off, 100);
+        assert_eq!(off.in_window(), 0);
     }
 
     #[test]

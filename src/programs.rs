@@ -92,6 +92,22 @@ pub fn load_or_default(spec: Option<&str>, params: &[(String, String)]) -> Resul
     }
 }
 
+/// The assembler's errors under one line that says what failed:
+/// `cannot assemble 'k.s' (2 errors):`, then each error as the assembler
+/// writes it (`k.s:5:3: error: ...`, the source line, a caret).
+pub fn assembly_errors(spec: &str, errors: &overlap_isa::AsmErrors) -> String {
+    let n = errors.len();
+    let mut s = format!(
+        "cannot assemble '{spec}' ({n} error{}):",
+        if n == 1 { "" } else { "s" }
+    );
+    for e in errors {
+        s.push('\n');
+        s.push_str(&e.to_string());
+    }
+    s
+}
+
 /// Load PROGRAM: an existing file is assembled (or, for ELF, loaded);
 /// anything else must name a built-in workload.
 pub fn load(spec: &str, params: &[(String, String)]) -> Result<Loaded> {
@@ -116,8 +132,8 @@ pub fn load(spec: &str, params: &[(String, String)]) -> Result<Loaded> {
         }
         let text = String::from_utf8(bytes)
             .with_context(|| format!("'{spec}' is neither an ELF file nor UTF-8 assembly text"))?;
-        let program =
-            overlap_isa::asm::assemble(&text, spec).map_err(|e| anyhow::anyhow!("{e}"))?;
+        let program = overlap_isa::asm::assemble(&text, spec)
+            .map_err(|e| anyhow::anyhow!("{}", assembly_errors(spec, &e)))?;
         return Ok(Loaded {
             label,
             workload: None,
@@ -125,7 +141,13 @@ pub fn load(spec: &str, params: &[(String, String)]) -> Result<Loaded> {
             program,
         });
     }
-    if spec.contains('/') || spec.ends_with(".s") || spec.ends_with(".S") {
+    let names_a_path = spec.contains('/') || spec.ends_with(".s") || spec.ends_with(".S");
+    if path.is_dir() && (names_a_path || overlap_workloads::find(spec).is_none()) {
+        bail!(
+            "cannot run '{spec}': it is a directory; PROGRAM is a built-in workload name, an assembly file (.s) or an RV64 ELF file"
+        );
+    }
+    if names_a_path {
         bail!("cannot read '{spec}': no such file");
     }
     let built = overlap_workloads::build(spec, params)?;

@@ -11,8 +11,67 @@ use std::fmt::Write;
 /// Width in cells of the ledger bars.
 const BAR_WIDTH: usize = 32;
 
-/// The full single-run report as text.
-pub fn run_table(title: &str, config_label: &str, config: &Config, r: &Report) -> String {
+/// How a run stopped at `--max-insts` relates to its kernel.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Truncation {
+    /// The run ended by itself.
+    None,
+    /// Stopped at the limit after the kernel started (or the whole run is
+    /// measured): the figures cover part of it.
+    Partial,
+    /// Stopped at the limit before the kernel's first instruction retired:
+    /// every figure is of the set-up.
+    SetUpOnly,
+}
+
+impl Truncation {
+    /// What happened to a run that measures from a kernel marker when
+    /// `kernel_measured` (the program marks a kernel and `--whole-run` is off).
+    pub fn of(r: &Report, kernel_measured: bool) -> Truncation {
+        match (r.truncated, kernel_measured && r.warmup.is_none()) {
+            (false, _) => Truncation::None,
+            (true, true) => Truncation::SetUpOnly,
+            (true, false) => Truncation::Partial,
+        }
+    }
+
+    /// A short cell for tables: empty, `truncated` or `set-up only`.
+    pub fn cell(self) -> &'static str {
+        match self {
+            Truncation::None => "",
+            Truncation::Partial => "truncated",
+            Truncation::SetUpOnly => "set-up only",
+        }
+    }
+}
+
+/// The note under a table when runs stopped at `--max-insts`: `who` names
+/// them (`the run`, `every run`, `blocking`, `3 of 10 points`...).
+pub fn truncation_note(who: &str, kind: Truncation, max_insts: Option<u64>) -> Option<String> {
+    let limit = max_insts.map_or("the instruction limit".to_string(), |n| {
+        format!("--max-insts {n}")
+    });
+    let what = match kind {
+        Truncation::None => return None,
+        Truncation::Partial => ": the figures cover only part of the run",
+        Truncation::SetUpOnly => {
+            " before the kernel started: every figure is of the set-up, not the kernel"
+        }
+    };
+    Some(format!(
+        "note: {who} stopped at {limit}{what}\n      (the limit counts every instruction from the program's start, set-up included)\n"
+    ))
+}
+
+/// The full single-run report as text. `config_label` names the machine
+/// with its overrides; `truncation` adds a note when the run was cut short.
+pub fn run_table(
+    title: &str,
+    config_label: &str,
+    config: &Config,
+    r: &Report,
+    truncation: Option<String>,
+) -> String {
     let mut s = String::new();
     let _ = writeln!(s, "{title} on {config_label}");
     let _ = writeln!(s);
@@ -39,6 +98,9 @@ pub fn run_table(title: &str, config_label: &str, config: &Config, r: &Report) -
     head.row(vec!["host time".into(), format!("{:.3} s", r.host.seconds)]);
     head.row(vec!["simulated MIPS".into(), fixed(r.host.mips, 2)]);
     s.push_str(&head.render());
+    if let Some(note) = truncation {
+        s.push_str(&note);
+    }
     s.push('\n');
     s.push_str(&ledger_section(r));
     s.push('\n');

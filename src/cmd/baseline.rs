@@ -20,7 +20,7 @@ use overlap_core::config::PRESETS;
 use overlap_core::{Config, SCHEMA_VERSION};
 use rayon::prelude::*;
 use serde::{Deserialize, Serialize};
-use std::collections::BTreeMap;
+use std::collections::{BTreeMap, BTreeSet};
 use std::path::Path;
 use std::process::ExitCode;
 
@@ -205,7 +205,63 @@ pub fn read(path: &Path) -> Result<Baseline> {
         b.report_schema,
         b.tool_version
     );
+    vet(path, &b)?;
     Ok(b)
+}
+
+/// Check that a baseline is consistent with itself: configuration labels
+/// unique, every run naming a recorded configuration, no run recorded
+/// twice, and every run of an entry built from the same workload and
+/// parameters. A file edited by hand (or cut and pasted from two files) is
+/// reported here, naming the run, rather than halfway through a check.
+fn vet(path: &Path, b: &Baseline) -> Result<()> {
+    let damaged = |what: String| {
+        anyhow!(
+            "'{}' is an inconsistent baseline file: {what}; record it again",
+            path.display()
+        )
+    };
+    let mut labels: Vec<&str> = Vec::new();
+    for c in &b.configs {
+        if labels.contains(&c.label.as_str()) {
+            return Err(damaged(format!(
+                "configuration '{}' is recorded twice",
+                c.label
+            )));
+        }
+        labels.push(&c.label);
+    }
+    let mut seen: BTreeSet<(&str, &str)> = BTreeSet::new();
+    let mut entries: BTreeMap<&str, &RecordedRun> = BTreeMap::new();
+    for run in &b.runs {
+        if !labels.contains(&run.config.as_str()) {
+            return Err(damaged(format!(
+                "run '{}' on '{}' names a configuration that is not recorded (recorded: {})",
+                run.entry,
+                run.config,
+                labels.join(", ")
+            )));
+        }
+        if !seen.insert((run.entry.as_str(), run.config.as_str())) {
+            return Err(damaged(format!(
+                "run '{}' on '{}' is recorded twice",
+                run.entry, run.config
+            )));
+        }
+        match entries.get(run.entry.as_str()) {
+            Some(first) if first.workload != run.workload || first.params != run.params => {
+                return Err(damaged(format!(
+                    "entry '{}' is recorded with different workloads or parameters on '{}' and '{}'",
+                    run.entry, first.config, run.config
+                )));
+            }
+            Some(_) => {}
+            None => {
+                entries.insert(&run.entry, run);
+            }
+        }
+    }
+    Ok(())
 }
 
 /// Recompute a metric the way it would read back from a file, so an
@@ -250,6 +306,7 @@ pub fn check(
         named.push(NamedConfig {
             label: c.label.clone(),
             config,
+            sets: Vec::new(),
         });
     }
     for spec in config_specs {

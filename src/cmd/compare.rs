@@ -6,7 +6,7 @@ use crate::configs::{self, NamedConfig};
 use crate::metrics;
 use crate::output;
 use crate::programs::Loaded;
-use crate::render::{self, Row};
+use crate::render::{self, Row, Truncation};
 use crate::sim;
 use crate::svg;
 use crate::table::{Align, Table, fixed, int, percent};
@@ -15,6 +15,7 @@ use overlap_core::Report;
 use overlap_core::config::PRESETS;
 use rayon::prelude::*;
 use serde::Serialize;
+use std::fmt::Write;
 use std::path::Path;
 use std::process::ExitCode;
 
@@ -47,7 +48,12 @@ pub fn compare(
         output::write_atomic(p, ledger_svg(&loaded, &named, &reports).as_bytes())?;
     }
     let text = match format {
-        Format::Table => table(&loaded, &named, &reports),
+        Format::Table => {
+            let measured = loaded.kernel_start().is_some() && !run.whole_run;
+            let mut t = table(&loaded, &named, &reports);
+            t.push_str(&notes(&named, &reports, measured, run.max_insts));
+            t
+        }
         Format::Json => json(&loaded, &named, &reports)?,
         Format::Csv => {
             let rows: Vec<Row<'_>> = named
@@ -74,6 +80,67 @@ fn speedup(first: &Report, r: &Report) -> f64 {
     } else {
         first.cycles as f64 / r.cycles as f64
     }
+}
+
+/// Lines under the table: runs cut short by `--max-insts`, and
+/// configurations that the overrides made identical.
+fn notes(
+    named: &[NamedConfig],
+    reports: &[Report],
+    kernel_measured: bool,
+    max_insts: Option<u64>,
+) -> String {
+    let mut s = String::new();
+    let kinds: Vec<Truncation> = reports
+        .iter()
+        .map(|r| Truncation::of(r, kernel_measured))
+        .collect();
+    for kind in [Truncation::SetUpOnly, Truncation::Partial] {
+        let who: Vec<&str> = named
+            .iter()
+            .zip(&kinds)
+            .filter(|(_, k)| **k == kind)
+            .map(|(c, _)| c.label.as_str())
+            .collect();
+        let who = match who.len() {
+            0 => continue,
+            n if n == named.len() && n > 1 => "every run".to_string(),
+            _ => who.join(", "),
+        };
+        if let Some(note) = render::truncation_note(&who, kind, max_insts) {
+            s.push_str(&note);
+        }
+    }
+    // Overrides can make configurations the same machine (every preset
+    // with `--set l1d.mode=Blocking`): say so rather than let the rows
+    // look like a finding.
+    let rons: Vec<String> = named.iter().map(|c| c.config.to_ron()).collect();
+    let mut seen = vec![false; named.len()];
+    for i in 0..named.len() {
+        if seen[i] {
+            continue;
+        }
+        let same: Vec<usize> = (i..named.len()).filter(|&j| rons[j] == rons[i]).collect();
+        if same.len() > 1 {
+            for &j in &same {
+                seen[j] = true;
+            }
+            let _ = writeln!(
+                s,
+                "note: {} are the same machine{}",
+                same.iter()
+                    .map(|&j| named[j].label.as_str())
+                    .collect::<Vec<_>>()
+                    .join(", "),
+                if named[i].sets.is_empty() {
+                    String::new()
+                } else {
+                    " after the overrides".to_string()
+                }
+            );
+        }
+    }
+    s
 }
 
 /// The side-by-side table.
@@ -122,17 +189,54 @@ pub fn table(loaded: &Loaded, named: &[NamedConfig], reports: &[Report]) -> Stri
         t.row(row);
     }
     let mut s = format!(
-        "{} on {} configurations (ledger columns: percent of each run's cycles)\n\n",
+        "{} on {} configurations (ledger columns: percent of each run's cycles)\n",
         loaded.title(),
         named.len()
     );
+    if let Some(line) = overrides_line(named) {
+        s.push_str(&line);
+    }
+    s.push('\n');
     s.push_str(&t.render());
     s
+}
+
+/// `overrides: --set a=1 (every configuration)` when the configurations
+/// were changed by `--set`, else `None`.
+pub fn overrides_line(named: &[NamedConfig]) -> Option<String> {
+    let first = named.first()?;
+    if named.iter().all(|c| c.sets.is_empty()) {
+        return None;
+    }
+    if named.iter().all(|c| c.sets == first.sets) {
+        let every = if named.len() > 1 {
+            " (every configuration)"
+        } else {
+            ""
+        };
+        return Some(format!(
+            "overrides: {}{every}\n",
+            configs::sets_phrase(&first.sets)
+        ));
+    }
+    Some(
+        named
+            .iter()
+            .map(|c| {
+                format!(
+                    "overrides of {}: {}\n",
+                    c.label,
+                    configs::sets_phrase(&c.sets)
+                )
+            })
+            .collect(),
+    )
 }
 
 #[derive(Serialize)]
 struct JsonRun<'a> {
     config: &'a str,
+    set: &'a [String],
     speedup: f64,
     report: &'a Report,
 }
@@ -150,6 +254,7 @@ fn json(loaded: &Loaded, named: &[NamedConfig], reports: &[Report]) -> Result<St
         .zip(reports)
         .map(|(c, r)| JsonRun {
             config: &c.label,
+            set: &c.sets,
             speedup: speedup(&reports[0], r),
             report: r,
         })
@@ -174,9 +279,13 @@ pub fn ledger_svg(loaded: &Loaded, named: &[NamedConfig], reports: &[Report]) ->
             ledger: &r.ledger,
         })
         .collect();
+    let mut subtitle = loaded.params_text();
+    if let Some(line) = overrides_line(named) {
+        subtitle = format!("{subtitle}; {}", line.trim_end());
+    }
     svg::ledger_bars(
         &format!("Cycle ledger: {}", loaded.label),
-        &loaded.params_text(),
+        &subtitle,
         &bars,
         &order,
     )

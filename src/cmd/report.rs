@@ -22,7 +22,8 @@ use std::process::ExitCode;
 /// Flags of `overlap report`.
 #[derive(Args, Debug, Clone)]
 pub struct ReportArgs {
-    /// Program (default: the hit/miss mix of `compare`).
+    /// A built-in workload name, an assembly file (.s) or an RV64 ELF
+    /// executable (default: the hit/miss mix of `compare`).
     pub program: Option<String>,
     #[command(flatten)]
     pub program_args: ProgramArgs,
@@ -61,7 +62,7 @@ pub fn report(a: &ReportArgs) -> Result<ExitCode> {
     let loaded = super::load_program(a.program.as_deref(), &a.program_args)?;
     output::check_writable_dir(&a.html)?;
     let start = timeline::window_start(&a.from, &loaded)?;
-    let rec = timeline::record(&loaded, &named, &a.run, start, a.cycles, 0)?;
+    let rec = timeline::record(&loaded, &named, &a.run, start, a.cycles, None)?;
     let page = page(&loaded, &named, &rec, a.cycles);
     output::write_atomic(&a.html, page.as_bytes())?;
     eprintln!("wrote '{}'", a.html.display());
@@ -83,6 +84,9 @@ fn page(loaded: &Loaded, named: &[NamedConfig], rec: &[Recorded], cycles: u64) -
         "<p class=\"note\">Written by overlap {}. Every cycle of a run is charged to one cause; the causes add up to the cycle count.</p>",
         env!("CARGO_PKG_VERSION")
     );
+    if let Some(line) = super::compare::overrides_line(named) {
+        let _ = writeln!(s, "<p class=\"note\">{}</p>", esc(line.trim_end()));
+    }
     configurations(&mut s, named, &reports);
     ledger(&mut s, loaded, named, &reports);
     waiting(&mut s, named, &reports);

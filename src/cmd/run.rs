@@ -3,11 +3,26 @@
 use crate::cli::{ConfigArgs, Format, ProgramArgs, RunArgs};
 use crate::configs::{self, DEFAULT_CONFIG};
 use crate::output;
-use crate::render::{self, Row};
+use crate::render::{self, Row, Truncation};
 use crate::sim;
 use anyhow::{Result, bail};
+use overlap_core::Report;
+use serde::Serialize;
+use std::collections::BTreeMap;
 use std::path::Path;
 use std::process::ExitCode;
+
+/// `run --format json`: the report's own keys at the top level (the
+/// documented schema), followed by what names the run.
+#[derive(Serialize)]
+struct JsonRun<'a> {
+    #[serde(flatten)]
+    report: &'a Report,
+    program: &'a str,
+    params: &'a BTreeMap<String, String>,
+    config: &'a str,
+    set: &'a [String],
+}
 
 /// Run the command.
 pub fn run(
@@ -32,8 +47,26 @@ pub fn run(
     sim::echo_program_output(&loaded.label, &outcome.summary);
     let r = &outcome.report;
     let text = match format {
-        Format::Table => render::run_table(&loaded.title(), &named.label, &named.config, r),
-        Format::Json => serde_json::to_string_pretty(r)? + "\n",
+        Format::Table => {
+            let kind = Truncation::of(r, loaded.kernel_start().is_some() && !run.whole_run);
+            render::run_table(
+                &loaded.title(),
+                &named.described(),
+                &named.config,
+                r,
+                render::truncation_note("the run", kind, run.max_insts),
+            )
+        }
+        Format::Json => {
+            let doc = JsonRun {
+                program: &loaded.label,
+                params: &loaded.params,
+                config: &named.label,
+                set: &named.sets,
+                report: r,
+            };
+            serde_json::to_string_pretty(&doc)? + "\n"
+        }
         Format::Csv => render::csv(&[Row {
             program: &loaded.label,
             config: &named.label,

@@ -4,16 +4,20 @@
 //! The grid is every combination of the `--vary` lists; point `i` is the
 //! `i`-th combination with the last `--vary` varying fastest. A point is
 //! identified by its index and its assignment of varied values; every line
-//! also carries the sweep's signature (a hash of the program, configuration,
-//! overrides and grid), so `--resume` and `merge` refuse files from another
-//! sweep. A line is written with one `write` call and flushed at once; a last
-//! line cut short by a kill is dropped on `--resume` and its point run again.
+//! also carries the sweep's signature (a hash of the resolved program,
+//! workload parameters, configuration after overrides, and grid, so that
+//! equivalent command lines agree) and the grid's size, so `--resume` and
+//! `merge` refuse files from another sweep and `merge` can name missing
+//! points. A line is written with one `write` call and flushed at once; a
+//! last line cut short by a kill is dropped on `--resume` and its point run
+//! again.
 
 use crate::cli::{ProgramArgs, RunArgs};
 use crate::configs::{self, DEFAULT_CONFIG, NamedConfig, Override};
 use crate::metrics::{self, Num};
 use crate::output::{self, csv_line};
 use crate::programs::{self, Loaded};
+use crate::render::{self, Truncation};
 use crate::sim;
 use crate::svg;
 use crate::table::{Align, Table, fixed, int};
@@ -38,7 +42,7 @@ pub const PARAM_PREFIX: &str = "param.";
 /// Flags of `overlap sweep`.
 #[derive(Args, Debug, Clone)]
 pub struct SweepArgs {
-    /// A built-in workload name or an assembly file.
+    /// A built-in workload name, an assembly file (.s) or an RV64 ELF executable.
     pub program: String,
     #[command(flatten)]
     pub program_args: ProgramArgs,
@@ -181,6 +185,10 @@ pub struct Record {
     pub sweep: String,
     /// Point index in the grid.
     pub index: u64,
+    /// Number of points in the whole grid, so `merge` can tell which are
+    /// missing (absent from files written before it was recorded).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub grid_size: Option<u64>,
     /// The varied values.
     pub point: IndexMap<String, String>,
     /// Program label.
@@ -193,22 +201,63 @@ pub struct Record {
     pub report: Report,
 }
 
-/// 64-bit FNV-1a, for signatures.
+/// 64-bit FNV-1a of text, for signatures.
 fn fnv(text: &str) -> u64 {
-    text.bytes().fold(0xcbf2_9ce4_8422_2325, |h, b| {
+    fnv_bytes(text.as_bytes())
+}
+
+/// 64-bit FNV-1a.
+// Source: the FNV-1a definition (Fowler, Noll, Vo): offset basis
+// 0xcbf29ce484222325, prime 0x100000001b3, xor then multiply.
+fn fnv_bytes(bytes: &[u8]) -> u64 {
+    bytes.iter().fold(0xcbf2_9ce4_8422_2325, |h, &b| {
         (h ^ u64::from(b)).wrapping_mul(0x0100_0000_01b3)
     })
 }
 
-/// What identifies a sweep: everything that decides its points' results.
-fn signature(a: &SweepArgs, grid: &Grid) -> String {
-    let mut s = format!("program={}\nconfig={}\n", a.program, a.config);
-    for p in &a.program_args.params {
-        s.push_str(&format!("param={p}\n"));
+/// What identifies a sweep: everything that decides its points' results,
+/// resolved, so that equivalent command lines agree: the program (a
+/// built-in workload's name, or a file's contents, wherever it lives), every
+/// workload parameter not varied with its resolved value (`64K` and `65536`,
+/// a default given or left out, in any order), the base configuration after
+/// `--set` as RON (a preset, or a file by its contents, not its path), the
+/// grid, `--max-insts` and `--whole-run`.
+fn signature(a: &SweepArgs, grid: &Grid) -> Result<String> {
+    let varied: BTreeSet<&str> = grid.dims.iter().map(|d| d.path.as_str()).collect();
+    let mut s = String::new();
+    let path = Path::new(&a.program);
+    if path.is_file() {
+        let bytes = std::fs::read(path).with_context(|| format!("cannot read '{}'", a.program))?;
+        s.push_str(&format!("file={:016x}\n", fnv_bytes(&bytes)));
+    } else {
+        let params: Vec<(String, String)> = programs::parse_params(&a.program_args.params)?
+            .into_iter()
+            .filter(|(k, _)| !varied.contains(format!("{PARAM_PREFIX}{k}").as_str()))
+            .collect();
+        // An unknown workload or a bad parameter is reported by `load` with
+        // its usual message; here only the resolved values matter.
+        match overlap_workloads::generate(&a.program, &params) {
+            Ok(g) => {
+                s.push_str(&format!("workload={}\n", g.name));
+                for (k, v) in &g.params {
+                    if !varied.contains(format!("{PARAM_PREFIX}{k}").as_str()) {
+                        s.push_str(&format!("param={k}={v}\n"));
+                    }
+                }
+            }
+            Err(_) => {
+                programs::load(&a.program, &params)?;
+                bail!("cannot build workload '{}'", a.program);
+            }
+        }
     }
-    for o in &a.sets {
-        s.push_str(&format!("set={o}\n"));
+    let mut base = configs::load(&a.config)?;
+    for o in configs::parse_overrides(&a.sets)? {
+        if !varied.contains(o.path.as_str()) {
+            configs::apply(&mut base.config, &o)?;
+        }
     }
+    s.push_str(&format!("config={}\n", base.config.to_ron()));
     for d in &grid.dims {
         s.push_str(&format!("vary={}={}\n", d.path, d.values.join("\u{1f}")));
     }
@@ -216,7 +265,7 @@ fn signature(a: &SweepArgs, grid: &Grid) -> String {
         "max_insts={:?}\nwhole_run={}\n",
         a.run.max_insts, a.run.whole_run
     ));
-    format!("{:016x}", fnv(&s))
+    Ok(format!("{:016x}", fnv(&s)))
 }
 
 /// `I/N`.
@@ -340,6 +389,32 @@ fn prepare(a: &SweepArgs, grid: &Grid, indices: &[u64]) -> Result<Prepared> {
     })
 }
 
+/// `--metric` must name a metric the points will have: a scalar, or
+/// `ledger.BUCKET` for a bucket one of the machines can produce. Checked
+/// before anything runs, so a typo costs no sweep.
+fn check_metric(a: &SweepArgs, prepared: &Prepared, previous: &[Record]) -> Result<()> {
+    let base = configs::load(&a.config)?;
+    let configs = std::iter::once(&base.config).chain(prepared.configs.iter().map(|c| &c.config));
+    let mut known: Vec<String> = metrics::SCALARS.iter().map(|s| s.to_string()).collect();
+    known.extend(
+        metrics::bucket_order(configs, [])
+            .into_iter()
+            .map(|b| format!("ledger.{b}")),
+    );
+    for k in previous.iter().flat_map(|r| r.metrics.keys()) {
+        if !known.contains(k) {
+            known.push(k.clone());
+        }
+    }
+    ensure!(
+        known.contains(&a.metric),
+        "--metric {}: no such metric; metrics: {}",
+        a.metric,
+        known.join(", ")
+    );
+    Ok(())
+}
+
 /// Run the command.
 pub fn sweep(a: &SweepArgs) -> Result<ExitCode> {
     let dims = a
@@ -362,7 +437,7 @@ pub fn sweep(a: &SweepArgs) -> Result<ExitCode> {
         .map(parse_shard)
         .transpose()?
         .unwrap_or((0, 1));
-    let sig = signature(a, &grid);
+    let sig = signature(a, &grid)?;
     for p in [a.csv.as_deref(), a.svg.as_deref(), a.out.as_deref()]
         .into_iter()
         .flatten()
@@ -375,6 +450,7 @@ pub fn sweep(a: &SweepArgs) -> Result<ExitCode> {
 
     // What is done already.
     let mut previous: Vec<Record> = Vec::new();
+    let mut cut_tail: Option<(PathBuf, u64)> = None;
     if let Some(out) = &a.out
         && out.exists()
     {
@@ -388,7 +464,7 @@ pub fn sweep(a: &SweepArgs) -> Result<ExitCode> {
         for (r, _) in &back.records {
             ensure!(
                 r.sweep == sig,
-                "'{}' holds results of a different sweep (signature {}, this sweep is {sig}): same program, configuration, --set and --vary are needed to resume",
+                "'{}' holds results of a different sweep (signature {}, this sweep is {sig}): to resume, the program, its --param values, --config, --set, --vary, --max-insts and --whole-run must match",
                 out.display(),
                 r.sweep
             );
@@ -400,16 +476,7 @@ pub fn sweep(a: &SweepArgs) -> Result<ExitCode> {
             );
         }
         if back.dropped_tail {
-            eprintln!(
-                "{}: dropping an incomplete last line (its point runs again)",
-                out.display()
-            );
-            let f = OpenOptions::new()
-                .write(true)
-                .open(out)
-                .with_context(|| format!("cannot open '{}'", out.display()))?;
-            f.set_len(back.good_len)
-                .with_context(|| format!("cannot truncate '{}'", out.display()))?;
+            cut_tail = Some((out.clone(), back.good_len));
         }
         previous = back.records.into_iter().map(|(r, _)| r).collect();
     }
@@ -424,6 +491,19 @@ pub fn sweep(a: &SweepArgs) -> Result<ExitCode> {
         todo.truncate(m);
     }
     let prepared = prepare(a, &grid, &todo)?;
+    check_metric(a, &prepared, &previous)?;
+    if let Some((out, good_len)) = cut_tail {
+        eprintln!(
+            "{}: dropping an incomplete last line (its point runs again)",
+            out.display()
+        );
+        let f = OpenOptions::new()
+            .write(true)
+            .open(&out)
+            .with_context(|| format!("cannot open '{}'", out.display()))?;
+        f.set_len(good_len)
+            .with_context(|| format!("cannot truncate '{}'", out.display()))?;
+    }
     let writer = match &a.out {
         Some(p) => Some(Mutex::new(
             OpenOptions::new()
@@ -458,6 +538,7 @@ pub fn sweep(a: &SweepArgs) -> Result<ExitCode> {
                 let record = Record {
                     sweep: sig.clone(),
                     index,
+                    grid_size: Some(total),
                     point,
                     program: loaded.label.clone(),
                     config: named.label.clone(),
@@ -495,7 +576,14 @@ pub fn sweep(a: &SweepArgs) -> Result<ExitCode> {
         );
     }
     finish_outputs(a, &grid, &all)?;
-    output::emit(None, &summary_table(&grid, &all, &a.metric))?;
+    let kernel_measured = !a.run.whole_run
+        && match prepared.programs.first() {
+            Some(p) => p.kernel_start().is_some(),
+            None => programs::load(&a.program, &[]).map_or(true, |p| p.kernel_start().is_some()),
+        };
+    let mut text = summary_table(&grid, &all, &a.metric, kernel_measured);
+    text.push_str(&truncation_notes(&all, kernel_measured, a.run.max_insts));
+    output::emit(None, &text)?;
     Ok(ExitCode::SUCCESS)
 }
 
@@ -513,6 +601,11 @@ fn describe(point: &IndexMap<String, String>) -> String {
         .join(" ")
 }
 
+/// The progress bar's layout: no colours named, so the bar is drawn in the
+/// terminal's own foreground colour on any background.
+const PROGRESS_TEMPLATE: &str =
+    "[{bar:40}] {pos}/{len} points  {elapsed_precise} elapsed, about {eta} left  {msg}";
+
 /// Progress on standard error: a bar with an ETA on a terminal, one plain
 /// line per finished point otherwise.
 struct Progress {
@@ -526,10 +619,9 @@ impl Progress {
         let bar = std::io::stderr().is_terminal().then(|| {
             let b = indicatif::ProgressBar::new(total);
             b.set_style(
-                indicatif::ProgressStyle::with_template(
-                    "{bar:40.green/black} {pos}/{len} points  {elapsed_precise} elapsed, about {eta} left  {msg}",
-                )
-                .expect("valid template"),
+                indicatif::ProgressStyle::with_template(PROGRESS_TEMPLATE)
+                    .expect("valid template")
+                    .progress_chars("█▉▊▋▌▍▎▏ "),
             );
             b
         });
@@ -599,17 +691,6 @@ fn finish_outputs(a: &SweepArgs, grid: &Grid, all: &[Record]) -> Result<()> {
     }
     if let Some(p) = &a.svg {
         let (x, others) = plot_axes(a, grid)?;
-        let known: BTreeSet<&String> = all.iter().flat_map(|r| r.metrics.keys()).collect();
-        ensure!(
-            all.is_empty() || known.contains(&a.metric),
-            "--metric {}: no such metric; metrics: {}",
-            a.metric,
-            known
-                .iter()
-                .map(|s| s.as_str())
-                .collect::<Vec<_>>()
-                .join(", ")
-        );
         let xs = &grid.dims[x].values;
         let mut lines: IndexMap<Vec<usize>, svg::Line> = IndexMap::new();
         // Every combination of the other paths gets a line, in grid order
@@ -690,7 +771,27 @@ fn csv(grid: &Grid, all: &[Record]) -> String {
     out
 }
 
-fn summary_table(grid: &Grid, all: &[Record], metric: &str) -> String {
+/// Notes under the summary table for points cut short by `--max-insts`.
+fn truncation_notes(all: &[Record], kernel_measured: bool, max_insts: Option<u64>) -> String {
+    let mut s = String::new();
+    for kind in [Truncation::SetUpOnly, Truncation::Partial] {
+        let n = all
+            .iter()
+            .filter(|r| Truncation::of(&r.report, kernel_measured) == kind)
+            .count();
+        let who = match n {
+            0 => continue,
+            n if n == all.len() => format!("every point ({n})"),
+            n => format!("{n} of {} points", all.len()),
+        };
+        if let Some(note) = render::truncation_note(&who, kind, max_insts) {
+            s.push_str(&note);
+        }
+    }
+    s
+}
+
+fn summary_table(grid: &Grid, all: &[Record], metric: &str, kernel_measured: bool) -> String {
     let mut header: Vec<(String, Align)> = vec![("point".into(), Align::Right)];
     header.extend(grid.dims.iter().map(|d| (d.path.clone(), Align::Right)));
     for h in ["cycles", "IPC", "L1D miss rate", "MLP l1d"] {
@@ -699,6 +800,11 @@ fn summary_table(grid: &Grid, all: &[Record], metric: &str) -> String {
     let extra = !["cycles", "ipc", "l1d_miss_rate", "l1d_mlp"].contains(&metric);
     if extra {
         header.push((metric.to_string(), Align::Right));
+    }
+    let cut = |r: &Record| Truncation::of(&r.report, kernel_measured);
+    let any_cut = all.iter().any(|r| cut(r) != Truncation::None);
+    if any_cut {
+        header.push(("note".into(), Align::Left));
     }
     let mut t = Table::with_columns(header);
     for r in all {
@@ -716,14 +822,27 @@ fn summary_table(grid: &Grid, all: &[Record], metric: &str) -> String {
         if extra {
             row.push(r.metrics.get(metric).map(|v| v.text()).unwrap_or_default());
         }
+        if any_cut {
+            row.push(cut(r).cell().to_string());
+        }
         t.row(row);
     }
     format!("{} of {} points\n{}", all.len(), grid.len(), t.render())
 }
 
-/// `overlap merge`: join result files, dedupe by point index, order by index.
-pub fn merge(inputs: &[PathBuf], out: &Path) -> Result<ExitCode> {
+/// `overlap merge`: join result files, dedupe by point index, order by
+/// index. An existing `out` is replaced only with `force` (it may be one of
+/// the inputs: every input is read before anything is written). Points of
+/// the grid that no file holds are listed on standard error.
+pub fn merge(inputs: &[PathBuf], out: &Path, force: bool) -> Result<ExitCode> {
     output::check_writable_dir(out)?;
+    ensure!(
+        force || !out.exists(),
+        "'{}' already exists; pass --force to replace it, or choose another --out",
+        out.display()
+    );
+    let mut grid_sizes: BTreeSet<u64> = BTreeSet::new();
+    let mut unsized_lines = false;
     let mut sig: Option<(String, &Path)> = None;
     let mut by_index: BTreeMap<u64, (Record, String)> = BTreeMap::new();
     let mut duplicates = 0;
@@ -733,6 +852,12 @@ pub fn merge(inputs: &[PathBuf], out: &Path) -> Result<ExitCode> {
             eprintln!("{}: ignoring an incomplete last line", path.display());
         }
         for (r, line) in back.records {
+            match r.grid_size {
+                Some(n) => {
+                    grid_sizes.insert(n);
+                }
+                None => unsized_lines = true,
+            }
             match &sig {
                 None => sig = Some((r.sweep.clone(), path)),
                 Some((s, first)) => ensure!(
@@ -764,12 +889,60 @@ pub fn merge(inputs: &[PathBuf], out: &Path) -> Result<ExitCode> {
     }
     output::write_atomic(out, text.as_bytes())?;
     eprintln!(
-        "merged {} points from {} files into '{}' ({duplicates} duplicates dropped)",
-        by_index.len(),
-        inputs.len(),
-        out.display()
+        "merged {} from {} into '{}' ({} dropped)",
+        counted(by_index.len(), "point", "points"),
+        counted(inputs.len(), "file", "files"),
+        out.display(),
+        counted(duplicates, "duplicate", "duplicates")
     );
+    if let (false, Some(&n)) = (unsized_lines, grid_sizes.iter().next())
+        && grid_sizes.len() == 1
+    {
+        let missing: Vec<u64> = (0..n).filter(|i| !by_index.contains_key(i)).collect();
+        if !missing.is_empty() {
+            eprintln!(
+                "warning: {} of the grid's {n} points are missing: {}",
+                missing.len(),
+                index_ranges(&missing)
+            );
+            eprintln!(
+                "         (run the shards that hold them, or `overlap sweep ... --resume --out {}`)",
+                out.display()
+            );
+        }
+    }
     Ok(ExitCode::SUCCESS)
+}
+
+/// `1 point`, `3 points`.
+fn counted(n: usize, one: &str, many: &str) -> String {
+    format!("{n} {}", if n == 1 { one } else { many })
+}
+
+/// `0-3, 7, 9-10` for sorted indices, cut after 20 runs.
+fn index_ranges(sorted: &[u64]) -> String {
+    let mut runs: Vec<(u64, u64)> = Vec::new();
+    for &i in sorted {
+        match runs.last_mut() {
+            Some((_, hi)) if *hi + 1 == i => *hi = i,
+            _ => runs.push((i, i)),
+        }
+    }
+    let mut parts: Vec<String> = runs
+        .iter()
+        .take(20)
+        .map(|&(lo, hi)| {
+            if lo == hi {
+                lo.to_string()
+            } else {
+                format!("{lo}-{hi}")
+            }
+        })
+        .collect();
+    if runs.len() > 20 {
+        parts.push("...".into());
+    }
+    parts.join(", ")
 }
 
 #[cfg(test)]
@@ -784,6 +957,22 @@ mod tests {
             ["Some((a: 1, b: 2))", "None"]
         );
         assert_eq!(split_values("\"a,b\",c"), ["\"a,b\"", "c"]);
+    }
+
+    #[test]
+    fn missing_indices_read_as_ranges() {
+        assert_eq!(index_ranges(&[0, 1, 2, 3, 7, 9, 10]), "0-3, 7, 9-10");
+        assert_eq!(index_ranges(&[5]), "5");
+        let many: Vec<u64> = (0..100).step_by(2).collect();
+        assert!(index_ranges(&many).ends_with(", ..."));
+    }
+
+    #[test]
+    fn progress_bar_names_no_colour() {
+        // A fixed colour (black) vanishes on a dark terminal: the bar uses
+        // the terminal's own colours.
+        assert!(!PROGRESS_TEMPLATE.contains('.'), "{PROGRESS_TEMPLATE}");
+        indicatif::ProgressStyle::with_template(PROGRESS_TEMPLATE).expect("valid template");
     }
 
     #[test]

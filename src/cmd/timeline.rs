@@ -24,7 +24,8 @@ pub const MAX_WINDOW: u64 = 1_000_000;
 /// Flags of `overlap timeline`.
 #[derive(Args, Debug, Clone)]
 pub struct TimelineArgs {
-    /// Program (default: the hit/miss mix of `compare`).
+    /// A built-in workload name, an assembly file (.s) or an RV64 ELF
+    /// executable (default: the hit/miss mix of `compare`).
     pub program: Option<String>,
     #[command(flatten)]
     pub program_args: ProgramArgs,
@@ -99,7 +100,7 @@ pub fn record(
     run: &RunArgs,
     start: WindowStart,
     cycles: u64,
-    max_rows: usize,
+    max_rows: Option<usize>,
 ) -> Result<Vec<Recorded>> {
     let opts = sim::options(run, loaded);
     named
@@ -147,9 +148,13 @@ pub fn timeline_svg(
             observed: r.activity.observed as usize,
         })
         .collect();
+    let mut subtitle = loaded.params_text();
+    if let Some(line) = super::compare::overrides_line(named) {
+        subtitle = format!("{subtitle}; {}", line.trim_end());
+    }
     svg::timeline(
         &format!("Activity timeline: {}", loaded.label),
-        &loaded.params_text(),
+        &subtitle,
         cycles as usize,
         &panels,
     )
@@ -165,12 +170,16 @@ pub fn timeline(a: &TimelineArgs) -> Result<ExitCode> {
         output::check_writable_dir(p)?;
     }
     let start = window_start(&a.from, &loaded)?;
-    let max_rows = if a.pipeline { a.max_rows } else { 0 };
+    let max_rows = a.pipeline.then_some(a.max_rows);
     let rec = record(&loaded, &named, &a.run, start, a.cycles, max_rows)?;
     if let Some(p) = &a.svg {
         output::write_atomic(p, timeline_svg(&loaded, &named, &rec, a.cycles).as_bytes())?;
     }
     let mut s = String::new();
+    if let Some(line) = super::compare::overrides_line(&named) {
+        s.push_str(&line);
+        s.push('\n');
+    }
     for (c, r) in named.iter().zip(&rec) {
         s.push_str(&text_strip(&c.label, &r.activity));
         if a.pipeline {
@@ -244,7 +253,7 @@ fn pipeline_view(p: &Pipeline, from: u64, cycles: u64) -> String {
     let _ = writeln!(
         s,
         "  {} instructions in flight in the window{}; cycles relative to {}; lane: one column per {} cycle{}",
-        p.rows.len() as u64 + p.dropped,
+        p.in_window(),
         if p.dropped > 0 {
             format!(" ({} not shown, see --max-rows)", p.dropped)
         } else {
@@ -254,6 +263,9 @@ fn pipeline_view(p: &Pipeline, from: u64, cycles: u64) -> String {
         per,
         if per == 1 { "" } else { "s" }
     );
+    if p.rows.is_empty() {
+        return s;
+    }
     let _ = writeln!(
         s,
         "  {:>10}  {:>10}  {:<26} {:>6} {:>6} {:>6} {:>6} {:>6}  lane (f d i c r; . front end, - waiting, = executing, _ done)",

@@ -125,6 +125,32 @@ fn damaged_and_incompatible_baselines_exit_2() {
         &run(&["check", schema.to_str().unwrap()]),
         &["report schema 999"],
     );
+    // A run whose configuration label was never recorded (an edited or
+    // spliced file) is named when the file is read, before anything runs.
+    let spliced = dir.path().join("spliced.json");
+    let mut v = json(&good);
+    let entry = v["runs"][0]["entry"].as_str().unwrap().to_string();
+    v["runs"][0]["config"] = "zzz".into();
+    std::fs::write(&spliced, v.to_string()).unwrap();
+    let o = run(&["check", spliced.to_str().unwrap()]);
+    fails_with(
+        &o,
+        &[
+            "inconsistent baseline file",
+            &format!("run '{entry}' on 'zzz'"),
+            "not recorded",
+        ],
+    );
+    assert!(!stderr(&o).contains("internal"), "{}", stderr(&o));
+    let twice = dir.path().join("twice.json");
+    let mut v = json(&good);
+    let first = v["runs"][0].clone();
+    v["runs"].as_array_mut().unwrap().push(first);
+    std::fs::write(&twice, v.to_string()).unwrap();
+    fails_with(
+        &run(&["check", twice.to_str().unwrap()]),
+        &["inconsistent baseline file", "recorded twice"],
+    );
     let missing = dir.path().join("missing.json");
     fails_with(
         &run(&["check", missing.to_str().unwrap()]),

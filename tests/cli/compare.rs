@@ -174,3 +174,65 @@ fn configuration_files_get_unique_labels() {
         .collect();
     assert_eq!(configs, ["mine", "mine#2"]);
 }
+
+#[test]
+fn overrides_show_in_the_table_and_the_json() {
+    let out = ok(&run(&["compare", &scan(), "--set", "l1d.mode=Blocking"]));
+    let lines: Vec<&str> = out.lines().collect();
+    assert_eq!(
+        lines[1], "overrides: --set l1d.mode=Blocking (every configuration)",
+        "{out}"
+    );
+    // Forcing the mode makes the three presets one machine: the table says
+    // so instead of showing three labels with identical figures.
+    assert!(
+        out.contains(
+            "note: blocking, hit-under-miss, miss-under-miss are the same machine after the overrides"
+        ),
+        "{out}"
+    );
+    let doc = json(&ok(&run(&[
+        "compare",
+        &scan(),
+        "--set",
+        "l1d.mshrs=2",
+        "--set",
+        "core.rob_entries=64",
+        "--format",
+        "json",
+    ])));
+    for r in doc["runs"].as_array().unwrap() {
+        assert_eq!(
+            r["set"],
+            serde_json::json!(["l1d.mshrs=2", "core.rob_entries=64"])
+        );
+    }
+    let plain = json(&ok(&run(&["compare", &scan(), "--format", "json"])));
+    assert_eq!(plain["runs"][0]["set"], serde_json::json!([]));
+    let text = ok(&run(&["compare", &scan()]));
+    assert!(!text.contains("overrides"), "{text}");
+    assert!(!text.contains("same machine"), "{text}");
+}
+
+#[test]
+fn runs_cut_short_by_the_instruction_limit_are_noted() {
+    let out = ok(&run(&["compare", "gather", "--max-insts", "2000"]));
+    assert!(
+        out.contains("note: every run stopped at --max-insts 2000 before the kernel started"),
+        "{out}"
+    );
+    // Past the set-up, the figures are of part of the run.
+    let out = ok(&run(&[
+        "compare",
+        &scan(),
+        "--whole-run",
+        "--max-insts",
+        "100",
+    ]));
+    assert!(
+        out.contains(
+            "note: every run stopped at --max-insts 100: the figures cover only part of the run"
+        ),
+        "{out}"
+    );
+}

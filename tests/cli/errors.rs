@@ -159,3 +159,76 @@ fn invalid_values_are_all_reported_at_once() {
     ]);
     fails_with(&o, &["2 problems", "core.fetch_width", "core.commit_width"]);
 }
+
+#[test]
+fn assembly_errors_come_under_one_line_naming_the_file() {
+    let dir = tmp();
+    std::fs::write(
+        dir.path().join("bad1.s"),
+        "main:\n  addi a0, a0, 1\n  foo a1, a2\n  li a0\n",
+    )
+    .unwrap();
+    let o = run_in(Some(dir.path()), &["run", "bad1.s"]);
+    fails_with(&o, &[]);
+    let err = stderr(&o);
+    let lines: Vec<&str> = err.lines().collect();
+    assert_eq!(
+        lines[0], "error: cannot assemble 'bad1.s' (2 errors):",
+        "{err}"
+    );
+    assert!(
+        lines[1].starts_with("bad1.s:3:3: error: unknown mnemonic 'foo'"),
+        "{err}"
+    );
+    assert!(
+        err.lines().any(|l| l.starts_with("bad1.s:4:")),
+        "every error is shown: {err}"
+    );
+    assert!(!err.contains("error: bad1.s"), "no doubled prefix: {err}");
+    std::fs::write(dir.path().join("bad2.s"), "main:\n  foo\n").unwrap();
+    let o = run_in(Some(dir.path()), &["run", "bad2.s"]);
+    fails_with(&o, &["cannot assemble 'bad2.s' (1 error):"]);
+}
+
+#[test]
+fn a_directory_is_not_a_program() {
+    let dir = tmp();
+    std::fs::create_dir(dir.path().join("kernels")).unwrap();
+    for spec in ["kernels", "./kernels", "kernels/"] {
+        let o = run_in(Some(dir.path()), &["run", spec]);
+        fails_with(&o, &[&format!("'{spec}': it is a directory")]);
+        assert!(!stderr(&o).contains("no such file"), "{}", stderr(&o));
+    }
+    // A directory named like a built-in workload does not hide the workload.
+    std::fs::create_dir(dir.path().join("gather")).unwrap();
+    ok(&run_in(Some(dir.path()), &["run", "gather"]));
+}
+
+#[test]
+fn a_station_or_unit_path_out_of_range_lists_what_there_is() {
+    // The default machine has two stations (int, mem): see `overlap preset`.
+    fails_with(
+        &run(&["run", &scan(), "--set", "core.stations.9.entries=3"]),
+        &[
+            "there is no core.stations.9",
+            "2 stations",
+            "0..=1",
+            "entries",
+        ],
+    );
+    fails_with(
+        &run(&["run", &scan(), "--set", "core.units.0.latencyy=3"]),
+        &[
+            "core.units.0 has no field 'latencyy'",
+            "latency",
+            "pipelined",
+        ],
+    );
+    let out = ok(&run(&[
+        "run",
+        &scan(),
+        "--set",
+        "core.stations.1.entries=4",
+    ]));
+    assert!(out.contains("+core.stations.1.entries=4"), "{out}");
+}

@@ -75,3 +75,32 @@ fn exec_runs_the_functional_model_alone() {
     assert!(stderr(&o).contains("exit code 0"), "{}", stderr(&o));
     fails_with(&run(&["exec", "chsae"]), &["unknown workload"]);
 }
+
+#[test]
+fn every_program_argument_says_what_it_accepts() {
+    for cmd in ["run", "compare", "sweep", "timeline", "report", "exec"] {
+        let help = ok(&run(&[cmd, "--help"]));
+        assert!(
+            help.contains("A built-in workload name, an assembly file (.s) or an RV64 ELF"),
+            "{cmd} --help:\n{help}"
+        );
+    }
+    let help = ok(&run(&["run", "--help"]));
+    assert!(
+        help.contains("counted from the program's start"),
+        "--max-insts says where it counts from:\n{help}"
+    );
+    let help = ok(&run(&["merge", "--help"]));
+    assert!(help.contains("--force"), "{help}");
+}
+
+#[test]
+fn exec_writes_the_programs_output_to_standard_output() {
+    // README, "Commands": `exec` prints the program's standard output on
+    // standard output; the running commands echo it on standard error.
+    let o = run(&["exec", &scan()]);
+    assert_eq!(ok(&o), "scan done\n");
+    let o = run(&["run", &scan(), "--format", "csv"]);
+    assert!(!ok(&o).contains("scan done"));
+    assert!(stderr(&o).contains("scan done"), "{}", stderr(&o));
+}

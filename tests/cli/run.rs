@@ -59,27 +59,30 @@ fn table_shows_every_section() {
 fn json_report_has_the_documented_keys_and_an_exact_ledger() {
     let o = run(&["run", &scan(), "--format", "json"]);
     let text = ok(&o);
-    let r = json(&text);
-    let mut keys: Vec<&str> = r.as_object().unwrap().keys().map(|k| k.as_str()).collect();
-    let mut documented = SCHEMA_KEYS.to_vec();
-    keys.sort_unstable();
-    documented.sort_unstable();
-    assert_eq!(keys, documented);
-    // In the documented order.
-    let at: Vec<usize> = SCHEMA_KEYS
+    let doc = json(&text);
+    // Source: README.md ("JSON report schema"): the report's keys at the top
+    // level in the documented order, then what names the run.
+    let mut order = SCHEMA_KEYS.to_vec();
+    order.extend(["program", "params", "config", "set"]);
+    let at: Vec<usize> = order
         .iter()
         .map(|k| text.find(&format!("\n  \"{k}\":")).unwrap())
         .collect();
     assert!(at.windows(2).all(|w| w[0] < w[1]), "{at:?}");
+    assert_eq!(doc.as_object().unwrap().len(), order.len());
+    assert_eq!(doc["program"], "scan.s");
+    assert_eq!(doc["config"], "miss-under-miss");
+    assert_eq!(doc["set"], serde_json::json!([]));
+    let r = report_of(doc);
     // The kernel was measured after its set-up.
     assert!(r["warmup"]["instructions"].as_u64().unwrap() > 0);
-    let whole = json(&ok(&run(&[
+    let whole = report_of(json(&ok(&run(&[
         "run",
         &scan(),
         "--format",
         "json",
         "--whole-run",
-    ])));
+    ]))));
     assert!(whole["warmup"].is_null());
     assert!(whole["cycles"].as_u64().unwrap() > r["cycles"].as_u64().unwrap());
     // Source: DESIGN.md §6: the buckets sum to the total cycle count exactly.
@@ -189,14 +192,14 @@ fn sets_apply_in_order() {
 
 #[test]
 fn instruction_limit_truncates_the_run() {
-    let r = json(&ok(&run(&[
+    let r = report_of(json(&ok(&run(&[
         "run",
         "chase",
         "--format",
         "json",
         "--max-insts",
         "500",
-    ])));
+    ]))));
     assert_eq!(r["truncated"], true);
     assert!(
         r["instructions"].as_u64().unwrap() <= 500,
@@ -216,4 +219,77 @@ fn table_of_a_small_run_matches_its_golden_file() {
         .map(|l| format!("{l}\n"))
         .collect();
     golden("run-scan-blocking.txt", &stable);
+}
+
+#[test]
+fn overrides_are_in_the_title_and_the_json() {
+    let out = ok(&run(&[
+        "run",
+        &scan(),
+        "--set",
+        "l1d.mode=Blocking",
+        "--set",
+        "l1d.mshrs=1",
+    ]));
+    let first = out.lines().next().unwrap();
+    assert!(
+        first.ends_with(" on miss-under-miss +l1d.mode=Blocking +l1d.mshrs=1"),
+        "{first}"
+    );
+    assert!(out.contains("Caches (L1D mode Blocking"), "{out}");
+    let doc = json(&ok(&run(&[
+        "run",
+        &scan(),
+        "--config",
+        "blocking",
+        "--set",
+        "core.rob_entries=32",
+        "--format",
+        "json",
+    ])));
+    assert_eq!(doc["config"], "blocking");
+    assert_eq!(doc["set"], serde_json::json!(["core.rob_entries=32"]));
+}
+
+#[test]
+fn a_run_cut_short_says_what_its_figures_cover() {
+    // gather's set-up runs about 72,000 instructions (`overlap run gather`
+    // leaves 71,730 out, measured), so a limit of 2,000 stops it before the
+    // kernel.
+    let out = ok(&run(&["run", "gather", "--max-insts", "2000"]));
+    assert!(
+        out.contains("note: the run stopped at --max-insts 2000 before the kernel started: every figure is of the set-up"),
+        "{out}"
+    );
+    assert!(
+        out.contains(
+            "(the limit counts every instruction from the program's start, set-up included)"
+        ),
+        "{out}"
+    );
+    let whole = ok(&run(&[
+        "run",
+        "gather",
+        "--max-insts",
+        "2000",
+        "--whole-run",
+    ]));
+    assert!(
+        whole.contains(
+            "note: the run stopped at --max-insts 2000: the figures cover only part of the run"
+        ),
+        "{whole}"
+    );
+    let full = ok(&run(&["run", &scan()]));
+    assert!(!full.contains("note:"), "{full}");
+}
+
+#[test]
+fn a_log_written_to_a_file_has_no_colour_codes() {
+    // Standard error is a pipe here, not a terminal.
+    let o = run(&["-v", "run", &scan()]);
+    ok(&o);
+    let log = stderr(&o);
+    assert!(log.contains("simulating"), "{log}");
+    assert!(!log.contains('\u{1b}'), "ANSI escape in {log:?}");
 }

@@ -351,3 +351,198 @@ fn svg_plots_one_line_per_series_value() {
     );
     fails_with(&o, &["--x core.rob_entries", "not a varied path"]);
 }
+
+/// A two-point sweep of `hashprobe` sharded in two, with `extra` arguments.
+fn probe_shard(dir: &Path, out: &str, shard: &str, extra: &[&str]) -> std::process::Output {
+    let mut args = vec![
+        "sweep",
+        "hashprobe",
+        "--vary",
+        "l1d.mshrs=1,2",
+        "--out",
+        out,
+        "--shard",
+        shard,
+    ];
+    args.extend_from_slice(extra);
+    run_in(Some(dir), &args)
+}
+
+#[test]
+fn equivalent_command_lines_make_the_same_sweep() {
+    // The signature is of what the points run, not of how it was typed:
+    // parameter order, a size suffix, a default given explicitly, and a
+    // configuration file reached by another path all make the same sweep.
+    let dir = tmp();
+    std::fs::create_dir(dir.path().join("sub")).unwrap();
+    let ron = ok(&run(&["preset", "miss-under-miss"]));
+    std::fs::write(dir.path().join("p.ron"), &ron).unwrap();
+    let first = [
+        "--param",
+        "footprint=64K",
+        "--param",
+        "probes=512",
+        "--config",
+        "p.ron",
+    ];
+    ok(&probe_shard(dir.path(), "a.jsonl", "0/2", &first));
+    let sig = |name: &str| {
+        let text = std::fs::read_to_string(dir.path().join(name)).unwrap();
+        json(text.lines().next().unwrap())["sweep"].clone()
+    };
+    let list = json(&ok(&run(&["workloads", "--format", "json"])));
+    let probe = list
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|w| w["name"] == "hashprobe")
+        .unwrap();
+    let seed = probe["params"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|p| p["name"] == "seed")
+        .unwrap()["default"]
+        .to_string();
+    let seed_arg = format!("seed={seed}");
+    let same = [
+        "--param",
+        "probes=512",
+        "--param",
+        "footprint=65536",
+        "--param",
+        &seed_arg,
+        "--config",
+        "./sub/../p.ron",
+    ];
+    ok(&probe_shard(dir.path(), "b.jsonl", "1/2", &same));
+    assert_eq!(sig("a.jsonl"), sig("b.jsonl"));
+    // So the shards merge, and either resumes the other.
+    ok(&run_in(
+        Some(dir.path()),
+        &["merge", "a.jsonl", "b.jsonl", "--out", "all.jsonl"],
+    ));
+    assert_eq!(points(&dir.path().join("all.jsonl")).len(), 2);
+    let mut resume: Vec<&str> = vec![
+        "sweep",
+        "hashprobe",
+        "--vary",
+        "l1d.mshrs=1,2",
+        "--out",
+        "a.jsonl",
+        "--resume",
+    ];
+    resume.extend_from_slice(&same);
+    let o = run_in(Some(dir.path()), &resume);
+    assert!(ok(&o).contains("2 of 2 points"), "{}", stdout(&o));
+    // A parameter that changes the points makes another sweep, and the
+    // refusal says which flags must match.
+    let mut other = resume.clone();
+    other.extend(["--param", "hit=100"]);
+    fails_with(
+        &run_in(Some(dir.path()), &other),
+        &["different sweep", "--param", "--set", "--vary"],
+    );
+}
+
+#[test]
+fn a_bad_metric_fails_before_anything_runs() {
+    let dir = tmp();
+    let o = run_in(
+        Some(dir.path()),
+        &[
+            "sweep",
+            &scan(),
+            "--vary",
+            "l1d.mshrs=1,2",
+            "--out",
+            "r.jsonl",
+            "--metric",
+            "l1d_mlpp",
+        ],
+    );
+    fails_with(&o, &["--metric l1d_mlpp", "no such metric", "l1d_mlp"]);
+    assert!(
+        !stderr(&o).contains("point 0"),
+        "no point ran: {}",
+        stderr(&o)
+    );
+    assert!(
+        files_in(dir.path()).is_empty(),
+        "{:?}",
+        files_in(dir.path())
+    );
+    // A ledger bucket of the machine is a metric, even one that stays zero.
+    ok(&run_in(
+        Some(dir.path()),
+        &[
+            "sweep",
+            &scan(),
+            "--vary",
+            "l1d.mshrs=1,2",
+            "--metric",
+            "ledger.rob",
+        ],
+    ));
+}
+
+#[test]
+fn merge_keeps_an_existing_file_and_names_missing_points() {
+    let dir = tmp();
+    let out = dir.path().join("r.jsonl");
+    let mut args = grid_args(&out);
+    args.extend(["--shard".into(), "0/2".into()]);
+    ok(&run_owned(dir.path(), &args));
+    std::fs::write(dir.path().join("all.jsonl"), "keep me\n").unwrap();
+    let o = run_in(
+        Some(dir.path()),
+        &["merge", "r.jsonl", "--out", "all.jsonl"],
+    );
+    fails_with(&o, &["'all.jsonl' already exists", "--force"]);
+    assert_eq!(
+        std::fs::read_to_string(dir.path().join("all.jsonl")).unwrap(),
+        "keep me\n"
+    );
+    let o = run_in(
+        Some(dir.path()),
+        &["merge", "r.jsonl", "--out", "all.jsonl", "--force"],
+    );
+    ok(&o);
+    // Shard 0 of 2 over 6 points holds 0, 2 and 4.
+    assert!(
+        stderr(&o).contains("warning: 3 of the grid's 6 points are missing: 1, 3, 5"),
+        "{}",
+        stderr(&o)
+    );
+    assert_eq!(
+        points(&dir.path().join("all.jsonl"))
+            .keys()
+            .copied()
+            .collect::<Vec<_>>(),
+        [0, 2, 4]
+    );
+}
+
+#[test]
+fn points_cut_short_by_the_instruction_limit_are_marked() {
+    // gather's set-up runs about 72,000 instructions (`overlap run gather`
+    // leaves 71,730 out, measured), so a limit of 2,000 stops every point
+    // before the kernel.
+    let o = run(&[
+        "sweep",
+        "gather",
+        "--vary",
+        "l1d.mshrs=1,2",
+        "--max-insts",
+        "2000",
+    ]);
+    let out = ok(&o);
+    assert!(out.contains("set-up only"), "{out}");
+    assert!(
+        out.contains("note: every point (2) stopped at --max-insts 2000 before the kernel started"),
+        "{out}"
+    );
+    assert!(out.contains("set-up included"), "{out}");
+    let plain = ok(&run(&["sweep", "gather", "--vary", "l1d.mshrs=1,2"]));
+    assert!(!plain.contains("note"), "{plain}");
+}

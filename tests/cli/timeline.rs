@@ -55,13 +55,13 @@ fn a_whole_run_window_counts_every_retired_instruction() {
     // The recorder sees skipped stretches of identical cycles as one call; the
     // window must still account for every cycle: the retired strip sums to the
     // instruction count whether or not idle cycles are skipped.
-    let r = json(&ok(&run(&[
+    let r = report_of(json(&ok(&run(&[
         "run",
         &scan(),
         "--format",
         "json",
         "--whole-run",
-    ])));
+    ]))));
     let cycles = r["cycles"].as_u64().unwrap();
     let insts = r["instructions"].as_u64().unwrap();
     let dir = tmp();
@@ -137,5 +137,49 @@ fn a_window_after_the_end_is_an_error() {
     fails_with(
         &run(&["timeline", &scan(), "--from", "soon"]),
         &["--from", "kernel"],
+    );
+}
+
+#[test]
+fn the_count_in_flight_does_not_depend_on_the_row_limit() {
+    let count = |rows: &str| -> Vec<String> {
+        let out = ok(&run(&[
+            "timeline",
+            "gather",
+            "--config",
+            "miss-under-miss",
+            "--cycles",
+            "200",
+            "--pipeline",
+            "--max-rows",
+            rows,
+        ]));
+        out.lines()
+            .filter(|l| l.contains("in flight in the window"))
+            .map(|l| l.split_whitespace().next().unwrap().to_string())
+            .collect()
+    };
+    let none = count("0");
+    assert_eq!(none.len(), 1);
+    assert_ne!(none[0], "0", "instructions retire in the window");
+    assert_eq!(none, count("1"));
+    assert_eq!(none, count("100000"));
+}
+
+#[test]
+fn overrides_are_named_above_the_strips() {
+    let out = ok(&run(&[
+        "timeline",
+        &scan(),
+        "--config",
+        "blocking",
+        "--set",
+        "core.rob_entries=32",
+        "--cycles",
+        "50",
+    ]));
+    assert!(
+        out.starts_with("overrides: --set core.rob_entries=32\n"),
+        "{out}"
     );
 }

@@ -102,13 +102,30 @@ pub fn json(text: &str) -> serde_json::Value {
     serde_json::from_str(text).unwrap_or_else(|e| panic!("not JSON ({e}):\n{text}"))
 }
 
-/// A report without its host figures (which vary from run to run).
-pub fn without_host(mut report: serde_json::Value) -> serde_json::Value {
+/// A report without its host figures (which vary from run to run); given a
+/// `run --format json` document, its report.
+pub fn without_host(doc: serde_json::Value) -> serde_json::Value {
+    let mut report = report_of(doc);
     report
         .as_object_mut()
         .expect("a report object")
         .remove("host");
     report
+}
+
+/// The report of a `run --format json` document: the report's keys without
+/// the ones that name the run (`program`, `params`, `config`, `set`); a
+/// compare entry's `report` is taken as it is.
+pub fn report_of(mut doc: serde_json::Value) -> serde_json::Value {
+    if let Some(r) = doc.get_mut("report") {
+        return r.take();
+    }
+    if let Some(o) = doc.as_object_mut() {
+        for k in ["program", "params", "config", "set"] {
+            o.remove(k);
+        }
+    }
+    doc
 }
 
 /// Compare `actual` with the golden file `tests/data/golden/NAME`; with
