@@ -72,6 +72,29 @@ pub struct ConfigArgs {
     pub sets: Vec<String>,
 }
 
+/// What every simulating command takes besides PROGRAM: its workload
+/// parameters, the configurations and how to run.
+#[derive(Args, Debug, Clone)]
+pub struct SimArgs {
+    #[command(flatten)]
+    pub program_args: ProgramArgs,
+    #[command(flatten)]
+    pub config: ConfigArgs,
+    #[command(flatten)]
+    pub run: RunArgs,
+}
+
+/// Where and in which format a tabular command writes its output.
+#[derive(Args, Debug, Clone)]
+pub struct OutputArgs {
+    /// Output format.
+    #[arg(long, value_enum, default_value_t = Format::Table)]
+    pub format: Format,
+    /// Write the output to this file (atomically) instead of standard output.
+    #[arg(long, value_name = "FILE")]
+    pub out: Option<PathBuf>,
+}
+
 #[derive(Subcommand, Debug)]
 pub enum Command {
     /// Simulate one program on one configuration and report the cycle ledger,
@@ -80,17 +103,9 @@ pub enum Command {
         /// A built-in workload name, an assembly file (.s) or an RV64 ELF executable.
         program: String,
         #[command(flatten)]
-        program_args: ProgramArgs,
+        sim: SimArgs,
         #[command(flatten)]
-        config: ConfigArgs,
-        #[command(flatten)]
-        run: RunArgs,
-        /// Output format.
-        #[arg(long, value_enum, default_value_t = Format::Table)]
-        format: Format,
-        /// Write the output to this file (atomically) instead of standard output.
-        #[arg(long, value_name = "FILE")]
-        out: Option<PathBuf>,
+        output: OutputArgs,
     },
     /// Run one program on several configurations in parallel (default: the
     /// three presets) and compare them side by side.
@@ -100,17 +115,9 @@ pub enum Command {
         /// miss, where the three presets differ clearly).
         program: Option<String>,
         #[command(flatten)]
-        program_args: ProgramArgs,
+        sim: SimArgs,
         #[command(flatten)]
-        config: ConfigArgs,
-        #[command(flatten)]
-        run: RunArgs,
-        /// Output format.
-        #[arg(long, value_enum, default_value_t = Format::Table)]
-        format: Format,
-        /// Write the output to this file (atomically) instead of standard output.
-        #[arg(long, value_name = "FILE")]
-        out: Option<PathBuf>,
+        output: OutputArgs,
         /// Also draw the ledgers as stacked bars into this SVG file.
         #[arg(long, value_name = "FILE")]
         svg: Option<PathBuf>,
@@ -204,36 +211,15 @@ pub fn dispatch(cli: Cli) -> Result<ExitCode> {
     match cli.command {
         Command::Run {
             program,
-            program_args,
-            config,
-            run,
-            format,
-            out,
-        } => cmd::run::run(
-            &program,
-            &program_args,
-            &config,
-            &run,
-            format,
-            out.as_deref(),
-        ),
+            sim,
+            output,
+        } => cmd::run::run(&program, &sim, &output),
         Command::Compare {
             program,
-            program_args,
-            config,
-            run,
-            format,
-            out,
+            sim,
+            output,
             svg,
-        } => cmd::compare::compare(
-            program.as_deref(),
-            &program_args,
-            &config,
-            &run,
-            format,
-            out.as_deref(),
-            svg.as_deref(),
-        ),
+        } => cmd::compare::compare(program.as_deref(), &sim, &output, svg.as_deref()),
         Command::Sweep(args) => cmd::sweep::sweep(&args),
         Command::Merge { inputs, out, force } => cmd::sweep::merge(&inputs, &out, force),
         Command::Baseline {

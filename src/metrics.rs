@@ -43,6 +43,22 @@ pub fn bucket_order<'a>(
     order
 }
 
+/// The buckets of [`bucket_order`] that hold at least one cycle in one of
+/// `reports`, in that order.
+pub fn buckets_in_use<'a>(
+    configs: impl IntoIterator<Item = &'a Config>,
+    reports: &'a [Report],
+) -> Vec<String> {
+    bucket_order(configs, reports)
+        .into_iter()
+        .filter(|b| {
+            reports
+                .iter()
+                .any(|r| r.ledger.get(b).is_some_and(|&c| c > 0))
+        })
+        .collect()
+}
+
 /// Waiting kinds that appear in any report, in the core's report order.
 pub fn waiting_order<'a>(reports: impl IntoIterator<Item = &'a Report> + Clone) -> Vec<String> {
     let mut order: Vec<String> = Vec::new();

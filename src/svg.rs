@@ -77,6 +77,24 @@ fn open(out: &mut String, width: f64, height: f64, title: &str) {
     );
 }
 
+/// A new chart: the document opening and the title in bold at the top left.
+fn titled(width: f64, height: f64, title: &str) -> String {
+    let mut s = String::new();
+    open(&mut s, width, height, title);
+    let _ = writeln!(
+        s,
+        "<text x=\"12\" y=\"22\" font-size=\"15\" font-weight=\"bold\">{}</text>",
+        esc(title)
+    );
+    s
+}
+
+/// A grey line of text under the title, its baseline at `y`; `markup` is
+/// written as it is (escape any text in it first).
+fn note_line(s: &mut String, y: u32, markup: &str) {
+    let _ = writeln!(s, "<text x=\"12\" y=\"{y}\" fill=\"#555\">{markup}</text>");
+}
+
 /// One bar of a ledger chart.
 pub struct LedgerBar<'a> {
     /// The configuration's label.
@@ -121,21 +139,12 @@ pub fn ledger_bars(
     let bars_bottom = top + bars.len() as f64 * (bar_h + gap);
     let height = bars_bottom + 30.0 + legend_rows as f64 * 20.0 + 10.0;
     let max = bars.iter().map(|b| b.cycles).max().unwrap_or(0).max(1) as f64;
-    let mut s = String::new();
-    open(&mut s, width, height, title);
-    let _ = writeln!(
-        s,
-        "<text x=\"12\" y=\"22\" font-size=\"15\" font-weight=\"bold\">{}</text>",
-        esc(title)
-    );
-    let _ = writeln!(
-        s,
-        "<text x=\"12\" y=\"38\" fill=\"#555\">{}</text>",
-        esc(subtitle)
-    );
-    let _ = writeln!(
-        s,
-        "<text x=\"12\" y=\"54\" fill=\"#555\">bar length: cycles (the longest run spans the plot); segments: the cycle ledger</text>"
+    let mut s = titled(width, height, title);
+    note_line(&mut s, 38, &esc(subtitle));
+    note_line(
+        &mut s,
+        54,
+        "bar length: cycles (the longest run spans the plot); segments: the cycle ledger",
     );
     for (i, b) in bars.iter().enumerate() {
         let y = top + i as f64 * (bar_h + gap);
@@ -266,13 +275,7 @@ pub fn line_plot(
         }
     };
     let ypos = |v: f64| top + plot_h - plot_h * v / ymax;
-    let mut s = String::new();
-    open(&mut s, width, height, title);
-    let _ = writeln!(
-        s,
-        "<text x=\"12\" y=\"22\" font-size=\"15\" font-weight=\"bold\">{}</text>",
-        esc(title)
-    );
+    let mut s = titled(width, height, title);
     // Axes and grid.
     s.push_str("<g class=\"axes\" stroke=\"#999\">\n");
     let mut v = 0.0;
@@ -427,26 +430,17 @@ pub fn timeline(
         .max()
         .unwrap_or(0)
         .max(1);
-    let mut s = String::new();
-    open(&mut s, width, height, title);
-    let _ = writeln!(
-        s,
-        "<text x=\"12\" y=\"22\" font-size=\"15\" font-weight=\"bold\">{}</text>",
-        esc(title)
-    );
-    let _ = writeln!(
-        s,
-        "<text x=\"12\" y=\"40\" fill=\"#555\">{}{}</text>",
-        esc(subtitle),
-        if per > 1 {
-            format!(" · each column shows the peak of {per} cycles")
-        } else {
-            String::new()
-        }
-    );
-    let _ = writeln!(
-        s,
-        "<text x=\"12\" y=\"58\" fill=\"#555\">upper strip: instructions retired per cycle; lower strip: outstanding demand misses, <tspan fill=\"#e0663a\" font-weight=\"bold\">L1D</tspan> (filled) and <tspan fill=\"#4f7cc2\" font-weight=\"bold\">DRAM</tspan> (line); x: cycles since each window start</text>"
+    let mut s = titled(width, height, title);
+    let peaks = if per > 1 {
+        format!(" · each column shows the peak of {per} cycles")
+    } else {
+        String::new()
+    };
+    note_line(&mut s, 40, &format!("{}{peaks}", esc(subtitle)));
+    note_line(
+        &mut s,
+        58,
+        "upper strip: instructions retired per cycle; lower strip: outstanding demand misses, <tspan fill=\"#e0663a\" font-weight=\"bold\">L1D</tspan> (filled) and <tspan fill=\"#4f7cc2\" font-weight=\"bold\">DRAM</tspan> (line); x: cycles since each window start",
     );
     for (pi, p) in panels.iter().enumerate() {
         let y0 = top + pi as f64 * (panel_h + panel_gap);

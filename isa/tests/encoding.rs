@@ -290,27 +290,30 @@ fn sources_and_destination() {
     assert_eq!(addi.sources(), [r("a1"), Reg::ZERO]);
 }
 
+/// `op` with the registers its format has (the others zero) and the
+/// immediate field value `v` (for U-format, placed in bits 31..12).
+fn shaped(op: Op, [rd, rs1, rs2]: [Reg; 3], v: i64) -> Inst {
+    let f = op.format();
+    let imm = match f {
+        Format::U => ((v as u32) << 12) as i32,
+        _ => v as i32,
+    };
+    let has = |present: bool, reg: Reg| if present { reg } else { Reg::ZERO };
+    Inst::new(
+        op,
+        has(f.has_rd(), rd),
+        has(f.has_rs1(), rs1),
+        has(f.has_rs2(), rs2),
+        imm,
+    )
+}
+
 /// A random valid instruction for `op`: operands the format lacks are zero.
 fn arb_inst(op: Op) -> impl Strategy<Value = Inst> {
     let reg = || (0u8..32).prop_map(Reg);
     let range = imm_range(op);
-    let imm = (range.min..=range.max).prop_map(move |v| {
-        let v = if range.even { v & !1 } else { v };
-        match op.format() {
-            Format::U => ((v as u32) << 12) as i32,
-            _ => v as i32,
-        }
-    });
-    (reg(), reg(), reg(), imm).prop_map(move |(rd, rs1, rs2, imm)| {
-        let f = op.format();
-        Inst::new(
-            op,
-            if f.has_rd() { rd } else { Reg::ZERO },
-            if f.has_rs1() { rs1 } else { Reg::ZERO },
-            if f.has_rs2() { rs2 } else { Reg::ZERO },
-            imm,
-        )
-    })
+    let imm = (range.min..=range.max).prop_map(move |v| if range.even { v & !1 } else { v });
+    (reg(), reg(), reg(), imm).prop_map(move |(rd, rs1, rs2, v)| shaped(op, [rd, rs1, rs2], v))
 }
 
 fn arb_any_inst() -> impl Strategy<Value = Inst> {
@@ -343,18 +346,7 @@ fn round_trip_every_operation() {
     for op in Op::ALL {
         let range = imm_range(op);
         for v in [range.min, range.max, 0] {
-            let imm = match op.format() {
-                Format::U => ((v as u32) << 12) as i32,
-                _ => v as i32,
-            };
-            let f = op.format();
-            let inst = Inst::new(
-                op,
-                if f.has_rd() { Reg(31) } else { Reg::ZERO },
-                if f.has_rs1() { Reg(17) } else { Reg::ZERO },
-                if f.has_rs2() { Reg(1) } else { Reg::ZERO },
-                imm,
-            );
+            let inst = shaped(op, [Reg(31), Reg(17), Reg(1)], v);
             assert_eq!(decode(encode(&inst)), Ok(inst), "{inst}");
         }
     }

@@ -1,7 +1,7 @@
 //! `overlap compare`: one program on several configurations, run in
 //! parallel, side by side.
 
-use crate::cli::{ConfigArgs, Format, ProgramArgs, RunArgs};
+use crate::cli::{Format, OutputArgs, SimArgs};
 use crate::configs::{self, NamedConfig};
 use crate::metrics;
 use crate::output;
@@ -22,16 +22,12 @@ use std::process::ExitCode;
 /// Run the command.
 pub fn compare(
     program: Option<&str>,
-    program_args: &ProgramArgs,
-    config: &ConfigArgs,
-    run: &RunArgs,
-    format: Format,
-    out: Option<&Path>,
+    sim: &SimArgs,
+    output: &OutputArgs,
     svg_out: Option<&Path>,
 ) -> Result<ExitCode> {
-    let overrides = configs::parse_overrides(&config.sets)?;
-    let named = configs::resolve(&config.configs, &overrides, &PRESETS)?;
-    let loaded = super::load_program(program, program_args)?;
+    let (named, loaded) = super::resolve(program, sim, &PRESETS)?;
+    let (run, out) = (&sim.run, output.out.as_deref());
     for p in [out, svg_out].into_iter().flatten() {
         output::check_writable_dir(p)?;
     }
@@ -47,7 +43,7 @@ pub fn compare(
     if let Some(p) = svg_out {
         output::write_atomic(p, ledger_svg(&loaded, &named, &reports).as_bytes())?;
     }
-    let text = match format {
+    let text = match output.format {
         Format::Table => {
             let measured = loaded.kernel_start().is_some() && !run.whole_run;
             let mut t = table(&loaded, &named, &reports);
@@ -145,14 +141,7 @@ fn notes(
 
 /// The side-by-side table.
 pub fn table(loaded: &Loaded, named: &[NamedConfig], reports: &[Report]) -> String {
-    let buckets: Vec<String> = metrics::bucket_order(named.iter().map(|c| &c.config), reports)
-        .into_iter()
-        .filter(|b| {
-            reports
-                .iter()
-                .any(|r| r.ledger.get(b).is_some_and(|&c| c > 0))
-        })
-        .collect();
+    let buckets = metrics::buckets_in_use(named.iter().map(|c| &c.config), reports);
     let mut header: Vec<(String, Align)> = [
         ("config", Align::Left),
         ("cycles", Align::Right),

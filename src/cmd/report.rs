@@ -4,8 +4,8 @@
 //! activity timeline.
 
 use super::timeline::{self, Recorded};
-use crate::cli::{ConfigArgs, ProgramArgs, RunArgs};
-use crate::configs::{self, NamedConfig};
+use crate::cli::SimArgs;
+use crate::configs::NamedConfig;
 use crate::metrics;
 use crate::output;
 use crate::programs::Loaded;
@@ -26,11 +26,7 @@ pub struct ReportArgs {
     /// executable (default: the hit/miss mix of `compare`).
     pub program: Option<String>,
     #[command(flatten)]
-    pub program_args: ProgramArgs,
-    #[command(flatten)]
-    pub config: ConfigArgs,
-    #[command(flatten)]
-    pub run: RunArgs,
+    pub sim: SimArgs,
     /// The HTML file to write.
     #[arg(long, value_name = "FILE")]
     pub html: PathBuf,
@@ -57,12 +53,10 @@ pre { background: #f7f7f7; padding: 0.6em; font-size: 0.8em; overflow-x: auto; }
 /// Run the command.
 pub fn report(a: &ReportArgs) -> Result<ExitCode> {
     timeline::check_window(a.cycles)?;
-    let overrides = configs::parse_overrides(&a.config.sets)?;
-    let named = configs::resolve(&a.config.configs, &overrides, &PRESETS)?;
-    let loaded = super::load_program(a.program.as_deref(), &a.program_args)?;
+    let (named, loaded) = super::resolve(a.program.as_deref(), &a.sim, &PRESETS)?;
     output::check_writable_dir(&a.html)?;
     let start = timeline::window_start(&a.from, &loaded)?;
-    let rec = timeline::record(&loaded, &named, &a.run, start, a.cycles, None)?;
+    let rec = timeline::record(&loaded, &named, &a.sim.run, start, a.cycles, None)?;
     let page = page(&loaded, &named, &rec, a.cycles);
     output::write_atomic(&a.html, page.as_bytes())?;
     eprintln!("wrote '{}'", a.html.display());
@@ -143,14 +137,7 @@ fn configurations(s: &mut String, named: &[NamedConfig], reports: &[Report]) {
 fn ledger(s: &mut String, loaded: &Loaded, named: &[NamedConfig], reports: &[Report]) {
     let _ = writeln!(s, "<h2 id=\"ledger\">Cycle ledger</h2>");
     s.push_str(&super::compare::ledger_svg(loaded, named, reports));
-    let order: Vec<String> = metrics::bucket_order(named.iter().map(|c| &c.config), reports)
-        .into_iter()
-        .filter(|b| {
-            reports
-                .iter()
-                .any(|r| r.ledger.get(b).is_some_and(|&c| c > 0))
-        })
-        .collect();
+    let order = metrics::buckets_in_use(named.iter().map(|c| &c.config), reports);
     s.push_str("<table>\n<tr><th>bucket</th>");
     for c in named {
         let _ = write!(s, "<th>{}</th>", esc(&c.label));

@@ -1,7 +1,7 @@
 //! `overlap run`: one program on one configuration.
 
-use crate::cli::{ConfigArgs, Format, ProgramArgs, RunArgs};
-use crate::configs::{self, DEFAULT_CONFIG};
+use crate::cli::{Format, OutputArgs, SimArgs};
+use crate::configs::DEFAULT_CONFIG;
 use crate::output;
 use crate::render::{self, Row, Truncation};
 use crate::sim;
@@ -9,7 +9,6 @@ use anyhow::{Result, bail};
 use overlap_core::Report;
 use serde::Serialize;
 use std::collections::BTreeMap;
-use std::path::Path;
 use std::process::ExitCode;
 
 /// `run --format json`: the report's own keys at the top level (the
@@ -25,20 +24,13 @@ struct JsonRun<'a> {
 }
 
 /// Run the command.
-pub fn run(
-    program: &str,
-    program_args: &ProgramArgs,
-    config: &ConfigArgs,
-    run: &RunArgs,
-    format: Format,
-    out: Option<&Path>,
-) -> Result<ExitCode> {
-    if config.configs.len() > 1 {
+pub fn run(program: &str, sim: &SimArgs, output: &OutputArgs) -> Result<ExitCode> {
+    if sim.config.configs.len() > 1 {
         bail!("run takes one --config; use `overlap compare` for several");
     }
-    let overrides = configs::parse_overrides(&config.sets)?;
-    let named = configs::resolve(&config.configs, &overrides, &[DEFAULT_CONFIG])?.remove(0);
-    let loaded = super::load_program(Some(program), program_args)?;
+    let (mut named, loaded) = super::resolve(Some(program), sim, &[DEFAULT_CONFIG])?;
+    let named = named.remove(0);
+    let (run, out) = (&sim.run, output.out.as_deref());
     if let Some(p) = out {
         output::check_writable_dir(p)?;
     }
@@ -46,7 +38,7 @@ pub fn run(
     let outcome = sim::run(&loaded, &named, &opts)?;
     sim::echo_program_output(&loaded.label, &outcome.summary);
     let r = &outcome.report;
-    let text = match format {
+    let text = match output.format {
         Format::Table => {
             let kind = Truncation::of(r, loaded.kernel_start().is_some() && !run.whole_run);
             render::run_table(

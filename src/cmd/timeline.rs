@@ -2,8 +2,8 @@
 //! above outstanding misses per cycle over a window, as SVG, as a text strip,
 //! and (with `--pipeline`) each instruction's pipeline events in the window.
 
-use crate::cli::{ConfigArgs, ProgramArgs, RunArgs};
-use crate::configs::{self, NamedConfig};
+use crate::cli::{RunArgs, SimArgs};
+use crate::configs::NamedConfig;
 use crate::observe::{Activity, PipeRow, Pipeline, WindowStart};
 use crate::output;
 use crate::programs::Loaded;
@@ -28,11 +28,7 @@ pub struct TimelineArgs {
     /// executable (default: the hit/miss mix of `compare`).
     pub program: Option<String>,
     #[command(flatten)]
-    pub program_args: ProgramArgs,
-    #[command(flatten)]
-    pub config: ConfigArgs,
-    #[command(flatten)]
-    pub run: RunArgs,
+    pub sim: SimArgs,
     /// First cycle of the window; or `kernel` for the cycle at which the
     /// kernel's first instruction retires (the `measure_start` label), and
     /// `kernel+N` for N cycles after that.
@@ -163,15 +159,13 @@ pub fn timeline_svg(
 /// Run the command.
 pub fn timeline(a: &TimelineArgs) -> Result<ExitCode> {
     check_window(a.cycles)?;
-    let overrides = configs::parse_overrides(&a.config.sets)?;
-    let named = configs::resolve(&a.config.configs, &overrides, &PRESETS)?;
-    let loaded = super::load_program(a.program.as_deref(), &a.program_args)?;
+    let (named, loaded) = super::resolve(a.program.as_deref(), &a.sim, &PRESETS)?;
     if let Some(p) = &a.svg {
         output::check_writable_dir(p)?;
     }
     let start = window_start(&a.from, &loaded)?;
     let max_rows = a.pipeline.then_some(a.max_rows);
-    let rec = record(&loaded, &named, &a.run, start, a.cycles, max_rows)?;
+    let rec = record(&loaded, &named, &a.sim.run, start, a.cycles, max_rows)?;
     if let Some(p) = &a.svg {
         output::write_atomic(p, timeline_svg(&loaded, &named, &rec, a.cycles).as_bytes())?;
     }

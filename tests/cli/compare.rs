@@ -84,27 +84,14 @@ fn svg_has_a_bar_per_configuration_and_a_legend() {
     let doc_json = json(&ok(&o));
     let text = std::fs::read_to_string(&svg_path).unwrap();
     let doc = xml(&text);
-    let bars: Vec<_> = doc
-        .descendants()
-        .filter(|n| n.attribute("class") == Some("bar"))
-        .collect();
-    let labels: Vec<&str> = bars
-        .iter()
-        .map(|b| b.attribute("data-config").unwrap())
-        .collect();
+    let bars = with_attr(&doc, "class", "bar");
+    let labels = attr_of_class(&doc, "bar", "data-config");
     assert_eq!(labels, ["blocking", "hit-under-miss", "miss-under-miss"]);
-    let legend: Vec<&str> = doc
-        .descendants()
-        .filter(|n| n.attribute("class") == Some("legend-entry"))
-        .map(|n| n.attribute("data-bucket").unwrap())
-        .collect();
+    let legend = attr_of_class(&doc, "legend-entry", "data-bucket");
     for (bar, run) in bars.iter().zip(doc_json["runs"].as_array().unwrap()) {
         // Every non-empty bucket of the run is a segment with its cycles, and
         // the segments add up to the run's cycles.
-        let segs: Vec<_> = bar
-            .descendants()
-            .filter(|n| n.attribute("class") == Some("seg"))
-            .collect();
+        let segs = within(*bar, "class", "seg");
         let ledger = run["report"]["ledger"].as_object().unwrap();
         let nonzero = ledger.values().filter(|v| v.as_u64().unwrap() > 0).count();
         assert_eq!(segs.len(), nonzero);
@@ -120,10 +107,7 @@ fn svg_has_a_bar_per_configuration_and_a_legend() {
     }
     // One colour per bucket across all bars.
     let mut colours = std::collections::BTreeMap::new();
-    for s in doc
-        .descendants()
-        .filter(|n| n.attribute("class") == Some("seg"))
-    {
+    for s in with_attr(&doc, "class", "seg") {
         let prev = colours.insert(
             s.attribute("data-bucket").unwrap(),
             s.attribute("fill").unwrap(),

@@ -3,6 +3,13 @@
 
 use crate::util::*;
 
+/// `overlap run` of the small test program with `--set SET` fails with every
+/// piece of `parts`.
+#[track_caller]
+fn set_fails(set: &str, parts: &[&str]) {
+    fails_with(&run(&["run", &scan(), "--set", set]), parts);
+}
+
 #[test]
 fn unknown_workload_lists_the_valid_names() {
     fails_with(
@@ -21,8 +28,8 @@ fn unknown_workload_lists_the_valid_names() {
 
 #[test]
 fn unknown_set_path_lists_fields_or_sections() {
-    fails_with(
-        &run(&["run", &scan(), "--set", "core.rob_entrys=64"]),
+    set_fails(
+        "core.rob_entrys=64",
         &[
             "core.rob_entrys",
             "no field 'rob_entrys'",
@@ -30,30 +37,18 @@ fn unknown_set_path_lists_fields_or_sections() {
             "lq_entries",
         ],
     );
-    fails_with(
-        &run(&["run", &scan(), "--set", "cache.ways=4"]),
+    set_fails(
+        "cache.ways=4",
         &["no section 'cache'", "core", "l1d", "dram"],
     );
-    fails_with(
-        &run(&["run", &scan(), "--set", "l1d.ways"]),
-        &["--set expects path=value"],
-    );
+    set_fails("l1d.ways", &["--set expects path=value"]);
 }
 
 #[test]
 fn a_value_of_the_wrong_type_names_the_path() {
-    fails_with(
-        &run(&["run", &scan(), "--set", "core.rob_entries=\"many\""]),
-        &["'core.rob_entries'"],
-    );
-    fails_with(
-        &run(&["run", &scan(), "--set", "l1d.mode=Lockup"]),
-        &["'l1d.mode'", "Blocking"],
-    );
-    fails_with(
-        &run(&["run", &scan(), "--set", "l1d.ways=6"]),
-        &["l1d.ways", "6"],
-    );
+    set_fails("core.rob_entries=\"many\"", &["'core.rob_entries'"]);
+    set_fails("l1d.mode=Lockup", &["'l1d.mode'", "Blocking"]);
+    set_fails("l1d.ways=6", &["l1d.ways", "6"]);
 }
 
 #[test]
@@ -207,8 +202,8 @@ fn a_directory_is_not_a_program() {
 #[test]
 fn a_station_or_unit_path_out_of_range_lists_what_there_is() {
     // The default machine has two stations (int, mem): see `overlap preset`.
-    fails_with(
-        &run(&["run", &scan(), "--set", "core.stations.9.entries=3"]),
+    set_fails(
+        "core.stations.9.entries=3",
         &[
             "there is no core.stations.9",
             "2 stations",
@@ -216,8 +211,8 @@ fn a_station_or_unit_path_out_of_range_lists_what_there_is() {
             "entries",
         ],
     );
-    fails_with(
-        &run(&["run", &scan(), "--set", "core.units.0.latencyy=3"]),
+    set_fails(
+        "core.units.0.latencyy=3",
         &[
             "core.units.0 has no field 'latencyy'",
             "latency",

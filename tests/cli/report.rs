@@ -39,18 +39,9 @@ fn html_is_self_contained_and_has_every_section() {
         .count();
     // Ledger bars, three MLP histograms, the timeline.
     assert_eq!(svgs, 5);
-    let hist: Vec<&str> = doc
-        .descendants()
-        .filter(|n| n.attribute("class") == Some("histogram"))
-        .map(|n| n.attribute("data-series").unwrap())
-        .collect();
+    let hist = attr_of_class(&doc, "histogram", "data-series");
     assert_eq!(hist, ["blocking", "hit-under-miss", "miss-under-miss"]);
-    assert_eq!(
-        doc.descendants()
-            .filter(|n| n.attribute("class") == Some("waiting"))
-            .count(),
-        3
-    );
+    assert_eq!(with_attr(&doc, "class", "waiting").len(), 3);
     assert!(
         text.contains("Blocking") && text.contains("MissUnderMiss"),
         "RON of each configuration"

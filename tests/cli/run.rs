@@ -76,13 +76,7 @@ fn json_report_has_the_documented_keys_and_an_exact_ledger() {
     let r = report_of(doc);
     // The kernel was measured after its set-up.
     assert!(r["warmup"]["instructions"].as_u64().unwrap() > 0);
-    let whole = report_of(json(&ok(&run(&[
-        "run",
-        &scan(),
-        "--format",
-        "json",
-        "--whole-run",
-    ]))));
+    let whole = report_of(scan_json(&["--whole-run"]));
     assert!(whole["warmup"].is_null());
     assert!(whole["cycles"].as_u64().unwrap() > r["cycles"].as_u64().unwrap());
     // Source: DESIGN.md §6: the buckets sum to the total cycle count exactly.
@@ -147,45 +141,16 @@ fn out_writes_the_file_and_nothing_else() {
 #[test]
 fn stepping_every_cycle_changes_nothing() {
     // Source: DESIGN.md §8: results are bit-identical with and without idle skipping.
-    let a = json(&ok(&run(&["run", &scan(), "--format", "json"])));
-    let b = json(&ok(&run(&[
-        "run",
-        &scan(),
-        "--format",
-        "json",
-        "--step-every-cycle",
-    ])));
+    let a = scan_json(&[]);
+    let b = scan_json(&["--step-every-cycle"]);
     assert_eq!(without_host(a), without_host(b));
 }
 
 #[test]
 fn sets_apply_in_order() {
-    let two_then_four = json(&ok(&run(&[
-        "run",
-        &scan(),
-        "--format",
-        "json",
-        "--set",
-        "l1d.mshrs=2",
-        "--set",
-        "l1d.mshrs=4",
-    ])));
-    let four = json(&ok(&run(&[
-        "run",
-        &scan(),
-        "--format",
-        "json",
-        "--set",
-        "l1d.mshrs=4",
-    ])));
-    let two = json(&ok(&run(&[
-        "run",
-        &scan(),
-        "--format",
-        "json",
-        "--set",
-        "l1d.mshrs=2",
-    ])));
+    let two_then_four = scan_json(&["--set", "l1d.mshrs=2", "--set", "l1d.mshrs=4"]);
+    let four = scan_json(&["--set", "l1d.mshrs=4"]);
+    let two = scan_json(&["--set", "l1d.mshrs=2"]);
     assert_eq!(without_host(two_then_four.clone()), without_host(four));
     assert_ne!(without_host(two_then_four), without_host(two));
 }
@@ -237,16 +202,7 @@ fn overrides_are_in_the_title_and_the_json() {
         "{first}"
     );
     assert!(out.contains("Caches (L1D mode Blocking"), "{out}");
-    let doc = json(&ok(&run(&[
-        "run",
-        &scan(),
-        "--config",
-        "blocking",
-        "--set",
-        "core.rob_entries=32",
-        "--format",
-        "json",
-    ])));
+    let doc = scan_json(&["--config", "blocking", "--set", "core.rob_entries=32"]);
     assert_eq!(doc["config"], "blocking");
     assert_eq!(doc["set"], serde_json::json!(["core.rob_entries=32"]));
 }

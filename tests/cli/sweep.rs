@@ -4,29 +4,34 @@
 use crate::util::*;
 use std::collections::BTreeMap;
 use std::path::Path;
+use std::process::Output;
 
-/// A sweep of 2 x 3 points on the small test program.
-fn grid_args(out: &Path) -> Vec<String> {
-    [
-        "sweep",
-        &scan(),
-        "--vary",
-        "l1d.mshrs=1,4",
+/// Run `overlap sweep PROGRAM --vary l1d.mshrs=MSHRS EXTRA...` in `dir`.
+fn sweep_mshrs(dir: &Path, program: &str, mshrs: &str, extra: &[&str]) -> Output {
+    let vary = format!("l1d.mshrs={mshrs}");
+    let mut args = vec!["sweep", program, "--vary", &vary];
+    args.extend_from_slice(extra);
+    run_in(Some(dir), &args)
+}
+
+/// Run a sweep of 2 x 3 points on the small test program in `dir`, written
+/// to `out`, with `extra` arguments.
+fn grid(dir: &Path, out: &Path, extra: &[&str]) -> Output {
+    let mut args = vec![
         "--vary",
         "core.rob_entries=16,32,64",
         "--jobs",
         "2",
         "--out",
         out.to_str().unwrap(),
-    ]
-    .iter()
-    .map(|s| s.to_string())
-    .collect()
+    ];
+    args.extend_from_slice(extra);
+    sweep_mshrs(dir, &scan(), "1,4", &args)
 }
 
-fn run_owned(dir: &Path, args: &[String]) -> std::process::Output {
-    let refs: Vec<&str> = args.iter().map(|s| s.as_str()).collect();
-    run_in(Some(dir), &refs)
+/// The indices of the points in a results file, in order.
+fn indices(path: &Path) -> Vec<u64> {
+    points(path).keys().copied().collect()
 }
 
 /// Lines of a results file as JSON, host figures removed, keyed by index.
@@ -50,13 +55,11 @@ fn points(path: &Path) -> BTreeMap<u64, serde_json::Value> {
 fn grid_runs_every_combination_once() {
     let dir = tmp();
     let out = dir.path().join("r.jsonl");
-    let mut args = grid_args(&out);
-    args.extend(["--csv".into(), "r.csv".into()]);
-    let o = run_owned(dir.path(), &args);
+    let o = grid(dir.path(), &out, &["--csv", "r.csv"]);
     let table = ok(&o);
     assert!(table.contains("6 of 6 points"), "{table}");
     let p = points(&out);
-    assert_eq!(p.keys().copied().collect::<Vec<_>>(), [0, 1, 2, 3, 4, 5]);
+    assert_eq!(indices(&out), [0, 1, 2, 3, 4, 5]);
     // Row-major order: the last --vary changes fastest.
     assert_eq!(p[&1]["point"]["l1d.mshrs"], "1");
     assert_eq!(p[&1]["point"]["core.rob_entries"], "32");
@@ -84,9 +87,7 @@ fn an_interrupted_sweep_resumes_without_losing_or_repeating_points() {
     let dir = tmp();
     let out = dir.path().join("r.jsonl");
     // First session: stops after 2 points, as if it had been killed.
-    let mut first = grid_args(&out);
-    first.extend(["--max-points".into(), "2".into()]);
-    let o = run_owned(dir.path(), &first);
+    let o = grid(dir.path(), &out, &["--max-points", "2"]);
     ok(&o);
     assert!(stderr(&o).contains("--resume"), "{}", stderr(&o));
     let before = std::fs::read_to_string(&out).unwrap();
@@ -95,12 +96,10 @@ fn an_interrupted_sweep_resumes_without_losing_or_repeating_points() {
     let partial = &before.lines().next().unwrap()[..80];
     std::fs::write(&out, format!("{before}{partial}")).unwrap();
     // Without --resume the file is left alone.
-    let o = run_owned(dir.path(), &grid_args(&out));
+    let o = grid(dir.path(), &out, &[]);
     fails_with(&o, &["already exists", "--resume"]);
     // Second session resumes.
-    let mut again = grid_args(&out);
-    again.push("--resume".into());
-    let o = run_owned(dir.path(), &again);
+    let o = grid(dir.path(), &out, &["--resume"]);
     ok(&o);
     assert!(
         stderr(&o).contains("incomplete last line"),
@@ -113,12 +112,9 @@ fn an_interrupted_sweep_resumes_without_losing_or_repeating_points() {
         "finished points are kept as written"
     );
     assert!(after.ends_with('\n'));
-    assert_eq!(
-        points(&out).keys().copied().collect::<Vec<_>>(),
-        [0, 1, 2, 3, 4, 5]
-    );
+    assert_eq!(indices(&out), [0, 1, 2, 3, 4, 5]);
     // A complete file resumes to nothing new.
-    let o = run_owned(dir.path(), &again);
+    let o = grid(dir.path(), &out, &["--resume"]);
     ok(&o);
     assert_eq!(std::fs::read_to_string(&out).unwrap(), after);
 }
@@ -127,23 +123,17 @@ fn an_interrupted_sweep_resumes_without_losing_or_repeating_points() {
 fn a_killed_sweep_resumes_without_losing_or_repeating_points() {
     let dir = tmp();
     let out = dir.path().join("r.jsonl");
-    let args: Vec<String> = [
-        "sweep",
-        "chase",
+    let args = [
         "--param",
         "hops=60000",
-        "--vary",
-        "l1d.mshrs=1,2,3,4,5,6,7,8",
         "--jobs",
         "1",
         "--out",
         out.to_str().unwrap(),
-    ]
-    .iter()
-    .map(|s| s.to_string())
-    .collect();
+    ];
     let mut child = bin()
-        .args(&args)
+        .args(["sweep", "chase", "--vary", "l1d.mshrs=1,2,3,4,5,6,7,8"])
+        .args(args)
         .current_dir(dir.path())
         .stdout(std::process::Stdio::null())
         .stderr(std::process::Stdio::null())
@@ -166,33 +156,26 @@ fn a_killed_sweep_resumes_without_losing_or_repeating_points() {
         .split_inclusive('\n')
         .filter(|l| l.ends_with('\n'))
         .collect();
-    let mut again = args.clone();
-    again.push("--resume".into());
-    ok(&run_owned(dir.path(), &again));
+    let again = [&args[..], &["--resume"]].concat();
+    ok(&sweep_mshrs(dir.path(), "chase", "1,2,3,4,5,6,7,8", &again));
     let after = std::fs::read_to_string(&out).unwrap();
     assert!(
         after.starts_with(&complete),
         "points finished before the kill are kept"
     );
-    assert_eq!(
-        points(&out).keys().copied().collect::<Vec<_>>(),
-        (0..8).collect::<Vec<u64>>()
-    );
+    assert_eq!(indices(&out), (0..8).collect::<Vec<u64>>());
 }
 
 #[test]
 fn merged_shards_equal_the_whole_sweep() {
     let dir = tmp();
     let whole = dir.path().join("whole.jsonl");
-    ok(&run_owned(dir.path(), &grid_args(&whole)));
+    ok(&grid(dir.path(), &whole, &[]));
     for shard in ["0/2", "1/2"] {
         let path = dir.path().join(format!("shard{}.jsonl", &shard[..1]));
-        let mut args = grid_args(&path);
-        args.extend(["--shard".into(), shard.into()]);
-        ok(&run_owned(dir.path(), &args));
+        ok(&grid(dir.path(), &path, &["--shard", shard]));
     }
-    let s0 = points(&dir.path().join("shard0.jsonl"));
-    assert_eq!(s0.keys().copied().collect::<Vec<_>>(), [0, 2, 4]);
+    assert_eq!(indices(&dir.path().join("shard0.jsonl")), [0, 2, 4]);
     // Merge with a duplicate input: duplicates are dropped.
     let o = run_in(
         Some(dir.path()),
@@ -220,33 +203,22 @@ fn merged_shards_equal_the_whole_sweep() {
 fn results_of_another_sweep_are_refused() {
     let dir = tmp();
     let out = dir.path().join("r.jsonl");
-    ok(&run_owned(dir.path(), &grid_args(&out)));
+    ok(&grid(dir.path(), &out, &[]));
     let before = std::fs::read_to_string(&out).unwrap();
-    let o = run_in(
-        Some(dir.path()),
-        &[
-            "sweep",
-            &scan(),
-            "--vary",
-            "l1d.mshrs=1,2",
-            "--out",
-            "r.jsonl",
-            "--resume",
-        ],
+    let o = sweep_mshrs(
+        dir.path(),
+        &scan(),
+        "1,2",
+        &["--out", "r.jsonl", "--resume"],
     );
     fails_with(&o, &["different sweep"]);
     assert_eq!(std::fs::read_to_string(&out).unwrap(), before);
     // And merge refuses to mix them.
-    ok(&run_in(
-        Some(dir.path()),
-        &[
-            "sweep",
-            &scan(),
-            "--vary",
-            "l1d.mshrs=1,2",
-            "--out",
-            "other.jsonl",
-        ],
+    ok(&sweep_mshrs(
+        dir.path(),
+        &scan(),
+        "1,2",
+        &["--out", "other.jsonl"],
     ));
     let o = run_in(
         Some(dir.path()),
@@ -260,15 +232,13 @@ fn results_of_another_sweep_are_refused() {
 fn a_damaged_line_in_the_middle_is_an_error() {
     let dir = tmp();
     let out = dir.path().join("r.jsonl");
-    ok(&run_owned(dir.path(), &grid_args(&out)));
+    ok(&grid(dir.path(), &out, &[]));
     let text = std::fs::read_to_string(&out).unwrap();
     let mut lines: Vec<&str> = text.lines().collect();
     lines[2] = "{not json";
     std::fs::write(&out, lines.join("\n") + "\n").unwrap();
-    let mut args = grid_args(&out);
-    args.push("--resume".into());
     fails_with(
-        &run_owned(dir.path(), &args),
+        &grid(dir.path(), &out, &["--resume"]),
         &["r.jsonl:3:", "not a sweep result line"],
     );
 }
@@ -276,18 +246,11 @@ fn a_damaged_line_in_the_middle_is_an_error() {
 #[test]
 fn svg_plots_one_line_per_series_value() {
     let dir = tmp();
-    let o = run_in(
-        Some(dir.path()),
-        &[
-            "sweep",
-            &scan(),
-            "--vary",
-            "l1d.mshrs=1,2,4",
-            "--vary",
-            "param.missing=1",
-            "--svg",
-            "p.svg",
-        ],
+    let o = sweep_mshrs(
+        dir.path(),
+        &scan(),
+        "1,2,4",
+        &["--vary", "param.missing=1", "--svg", "p.svg"],
     );
     // A file program takes no workload parameters.
     fails_with(&o, &["--param applies to built-in workloads only"]);
@@ -316,19 +279,11 @@ fn svg_plots_one_line_per_series_value() {
     ok(&o);
     let text = std::fs::read_to_string(dir.path().join("p.svg")).unwrap();
     let doc = xml(&text);
-    let series: Vec<&str> = doc
-        .descendants()
-        .filter(|n| n.attribute("class") == Some("series"))
-        .map(|n| n.attribute("data-series").unwrap())
-        .collect();
+    let series = attr_of_class(&doc, "series", "data-series");
     assert_eq!(series, ["param.k=1", "param.k=4"]);
-    for s in doc
-        .descendants()
-        .filter(|n| n.attribute("class") == Some("series"))
-    {
-        let values: Vec<f64> = s
-            .descendants()
-            .filter(|n| n.attribute("class") == Some("point"))
+    for s in with_attr(&doc, "class", "series") {
+        let values: Vec<f64> = within(s, "class", "point")
+            .iter()
             .map(|n| n.attribute("data-value").unwrap().parse().unwrap())
             .collect();
         assert_eq!(values.len(), 3);
@@ -336,36 +291,19 @@ fn svg_plots_one_line_per_series_value() {
         assert!((values[0] - 1.0).abs() < 1e-9, "{values:?}");
         assert!(values.iter().all(|&v| v <= 4.0 + 1e-9), "{values:?}");
     }
-    let o = run_in(
-        Some(dir.path()),
-        &[
-            "sweep",
-            "chase",
-            "--vary",
-            "l1d.mshrs=1,2",
-            "--svg",
-            "q.svg",
-            "--x",
-            "core.rob_entries",
-        ],
+    let o = sweep_mshrs(
+        dir.path(),
+        "chase",
+        "1,2",
+        &["--svg", "q.svg", "--x", "core.rob_entries"],
     );
     fails_with(&o, &["--x core.rob_entries", "not a varied path"]);
 }
 
 /// A two-point sweep of `hashprobe` sharded in two, with `extra` arguments.
-fn probe_shard(dir: &Path, out: &str, shard: &str, extra: &[&str]) -> std::process::Output {
-    let mut args = vec![
-        "sweep",
-        "hashprobe",
-        "--vary",
-        "l1d.mshrs=1,2",
-        "--out",
-        out,
-        "--shard",
-        shard,
-    ];
-    args.extend_from_slice(extra);
-    run_in(Some(dir), &args)
+fn probe_shard(dir: &Path, out: &str, shard: &str, extra: &[&str]) -> Output {
+    let args = [&["--out", out, "--shard", shard], extra].concat();
+    sweep_mshrs(dir, "hashprobe", "1,2", &args)
 }
 
 #[test]
@@ -423,24 +361,14 @@ fn equivalent_command_lines_make_the_same_sweep() {
         &["merge", "a.jsonl", "b.jsonl", "--out", "all.jsonl"],
     ));
     assert_eq!(points(&dir.path().join("all.jsonl")).len(), 2);
-    let mut resume: Vec<&str> = vec![
-        "sweep",
-        "hashprobe",
-        "--vary",
-        "l1d.mshrs=1,2",
-        "--out",
-        "a.jsonl",
-        "--resume",
-    ];
-    resume.extend_from_slice(&same);
-    let o = run_in(Some(dir.path()), &resume);
+    let resume = [&["--out", "a.jsonl", "--resume"], &same[..]].concat();
+    let o = sweep_mshrs(dir.path(), "hashprobe", "1,2", &resume);
     assert!(ok(&o).contains("2 of 2 points"), "{}", stdout(&o));
     // A parameter that changes the points makes another sweep, and the
     // refusal says which flags must match.
-    let mut other = resume.clone();
-    other.extend(["--param", "hit=100"]);
+    let other = [&resume[..], &["--param", "hit=100"]].concat();
     fails_with(
-        &run_in(Some(dir.path()), &other),
+        &sweep_mshrs(dir.path(), "hashprobe", "1,2", &other),
         &["different sweep", "--param", "--set", "--vary"],
     );
 }
@@ -448,18 +376,11 @@ fn equivalent_command_lines_make_the_same_sweep() {
 #[test]
 fn a_bad_metric_fails_before_anything_runs() {
     let dir = tmp();
-    let o = run_in(
-        Some(dir.path()),
-        &[
-            "sweep",
-            &scan(),
-            "--vary",
-            "l1d.mshrs=1,2",
-            "--out",
-            "r.jsonl",
-            "--metric",
-            "l1d_mlpp",
-        ],
+    let o = sweep_mshrs(
+        dir.path(),
+        &scan(),
+        "1,2",
+        &["--out", "r.jsonl", "--metric", "l1d_mlpp"],
     );
     fails_with(&o, &["--metric l1d_mlpp", "no such metric", "l1d_mlp"]);
     assert!(
@@ -473,16 +394,11 @@ fn a_bad_metric_fails_before_anything_runs() {
         files_in(dir.path())
     );
     // A ledger bucket of the machine is a metric, even one that stays zero.
-    ok(&run_in(
-        Some(dir.path()),
-        &[
-            "sweep",
-            &scan(),
-            "--vary",
-            "l1d.mshrs=1,2",
-            "--metric",
-            "ledger.rob",
-        ],
+    ok(&sweep_mshrs(
+        dir.path(),
+        &scan(),
+        "1,2",
+        &["--metric", "ledger.rob"],
     ));
 }
 
@@ -490,9 +406,7 @@ fn a_bad_metric_fails_before_anything_runs() {
 fn merge_keeps_an_existing_file_and_names_missing_points() {
     let dir = tmp();
     let out = dir.path().join("r.jsonl");
-    let mut args = grid_args(&out);
-    args.extend(["--shard".into(), "0/2".into()]);
-    ok(&run_owned(dir.path(), &args));
+    ok(&grid(dir.path(), &out, &["--shard", "0/2"]));
     std::fs::write(dir.path().join("all.jsonl"), "keep me\n").unwrap();
     let o = run_in(
         Some(dir.path()),
@@ -514,13 +428,7 @@ fn merge_keeps_an_existing_file_and_names_missing_points() {
         "{}",
         stderr(&o)
     );
-    assert_eq!(
-        points(&dir.path().join("all.jsonl"))
-            .keys()
-            .copied()
-            .collect::<Vec<_>>(),
-        [0, 2, 4]
-    );
+    assert_eq!(indices(&dir.path().join("all.jsonl")), [0, 2, 4]);
 }
 
 #[test]

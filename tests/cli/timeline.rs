@@ -18,14 +18,8 @@ fn svg_has_retired_and_miss_strips_per_configuration() {
     ]));
     let text = std::fs::read_to_string(&path).unwrap();
     let doc = xml(&text);
-    let panels: Vec<_> = doc
-        .descendants()
-        .filter(|n| n.attribute("class") == Some("panel"))
-        .collect();
-    let labels: Vec<&str> = panels
-        .iter()
-        .map(|p| p.attribute("data-config").unwrap())
-        .collect();
+    let panels = with_attr(&doc, "class", "panel");
+    let labels = attr_of_class(&doc, "panel", "data-config");
     assert_eq!(labels, ["blocking", "hit-under-miss", "miss-under-miss"]);
     let peak = |panel: &roxmltree::Node<'_, '_>, series: &str| -> u64 {
         let strip = panel
@@ -55,13 +49,7 @@ fn a_whole_run_window_counts_every_retired_instruction() {
     // The recorder sees skipped stretches of identical cycles as one call; the
     // window must still account for every cycle: the retired strip sums to the
     // instruction count whether or not idle cycles are skipped.
-    let r = report_of(json(&ok(&run(&[
-        "run",
-        &scan(),
-        "--format",
-        "json",
-        "--whole-run",
-    ]))));
+    let r = report_of(scan_json(&["--whole-run"]));
     let cycles = r["cycles"].as_u64().unwrap();
     let insts = r["instructions"].as_u64().unwrap();
     let dir = tmp();

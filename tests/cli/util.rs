@@ -169,7 +169,42 @@ pub fn with_attr<'a, 'i>(
     name: &str,
     value: &str,
 ) -> Vec<roxmltree::Node<'a, 'i>> {
-    doc.descendants()
+    within(doc.root(), name, value)
+}
+
+/// `node` and the elements below it with attribute `name` equal to `value`.
+pub fn within<'a, 'i>(
+    node: roxmltree::Node<'a, 'i>,
+    name: &str,
+    value: &str,
+) -> Vec<roxmltree::Node<'a, 'i>> {
+    node.descendants()
         .filter(|n| n.attribute(name) == Some(value))
         .collect()
+}
+
+/// The attribute `attr` of every element of class `class`, in document order.
+#[track_caller]
+pub fn attr_of_class<'a>(
+    doc: &'a roxmltree::Document<'_>,
+    class: &str,
+    attr: &str,
+) -> Vec<&'a str> {
+    with_attr(doc, "class", class)
+        .iter()
+        .map(|n| {
+            n.attribute(attr)
+                .unwrap_or_else(|| panic!("a {class} element without {attr}"))
+        })
+        .collect()
+}
+
+/// `overlap run` of the small test program as a JSON document, with `extra`
+/// arguments.
+#[track_caller]
+pub fn scan_json(extra: &[&str]) -> serde_json::Value {
+    let program = scan();
+    let mut args = vec!["run", &program, "--format", "json"];
+    args.extend_from_slice(extra);
+    json(&ok(&run(&args)))
 }

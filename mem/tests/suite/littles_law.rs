@@ -9,7 +9,7 @@
 
 use overlap_mem::{CacheId, CacheMode, HierarchyConfig, PrefetchKind, Refusal};
 
-use crate::util::{Rng, build, drain, load, store, with_dram};
+use crate::util::{Rng, build, drain, load, occupancy_integral, store, with_dram};
 
 /// Offer loads of fresh lines as fast as the L1D accepts them; returns the
 /// number of lines and the cycle the last one completed.
@@ -139,13 +139,7 @@ fn occupancy_integral_equals_sum_of_miss_latencies() {
         }
         if prefetch == PrefetchKind::None {
             // Every DRAM read is a demand read here.
-            let integral: u64 = s
-                .dram
-                .outstanding_hist
-                .iter()
-                .enumerate()
-                .map(|(k, &c)| k as u64 * c)
-                .sum();
+            let integral = occupancy_integral(&s.dram.outstanding_hist);
             assert_eq!(integral, s.dram.read_latency_total);
         } else {
             assert!(s.l1d.prefetch_issued > 0);

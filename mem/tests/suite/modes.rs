@@ -10,7 +10,9 @@
 
 use overlap_mem::{AccessOutcome, CacheId, CacheMode, Level, Refusal};
 
-use crate::util::{build, drain, load, store, wait_for, with_l1d};
+use crate::util::{
+    build, drain, load, next_line_prefetching, occupancy_integral, store, wait_for, with_l1d,
+};
 
 const A: u64 = 0x10_0000;
 const B: u64 = 0x20_0000;
@@ -249,9 +251,7 @@ fn prefetches_use_free_registers_only() {
     assert_eq!((s.l1d.prefetch_issued, s.l1d.prefetch_dropped), (1, 3));
 
     // In a blocking cache the only register belongs to demand misses.
-    let mut cfg = with_l1d(CacheMode::Blocking, 2);
-    cfg.prefetch.kind = PrefetchKind::NextLine;
-    let mut h = build(&cfg);
+    let mut h = next_line_prefetching(CacheMode::Blocking, 2);
     h.access(0, load(1, A)).unwrap();
     let (_, end) = drain(&mut h);
     assert_eq!(h.stats(end).l1d.prefetch_issued, 0);
@@ -262,10 +262,7 @@ fn prefetch_useful_and_late_are_counted() {
     // Source: DESIGN.md §5 and the memory task statement: useful = a later
     // demand hit on a prefetched line, counted once; late = a demand that
     // arrived while the prefetch was in flight (it merges).
-    use overlap_mem::PrefetchKind;
-    let mut cfg = with_l1d(CacheMode::MissUnderMiss, 8);
-    cfg.prefetch.kind = PrefetchKind::NextLine;
-    let mut h = build(&cfg);
+    let mut h = next_line_prefetching(CacheMode::MissUnderMiss, 8);
     let line = 64;
     h.access(0, load(1, A)).unwrap(); // prefetches A + 64
     // Late: the demand for A + 64 arrives while its prefetch is in flight.
@@ -293,10 +290,7 @@ fn prefetch_useful_and_late_are_counted() {
 fn a_late_demand_turns_an_in_flight_prefetch_into_a_demand_miss_down_to_dram() {
     // Source: Chou, Fahs and Abraham, ISCA 2004: MLP counts outstanding
     // *demand* misses; a prefetch becomes one when a demand waits on it.
-    use overlap_mem::PrefetchKind;
-    let mut cfg = with_l1d(CacheMode::MissUnderMiss, 8);
-    cfg.prefetch.kind = PrefetchKind::NextLine;
-    let mut h = build(&cfg);
+    let mut h = next_line_prefetching(CacheMode::MissUnderMiss, 8);
     h.access(0, load(1, A)).unwrap(); // demand A, prefetch A + 64
     h.advance(100, &mut Vec::new());
     assert_eq!(h.outstanding_misses(CacheId::L1d), 2);
@@ -318,13 +312,7 @@ fn a_late_demand_turns_an_in_flight_prefetch_into_a_demand_miss_down_to_dram() {
         [(1, 226), (2, 234)]
     );
     let s = h.stats(end);
-    let demand_read_cycles: u64 = s
-        .dram
-        .outstanding_hist
-        .iter()
-        .enumerate()
-        .map(|(k, &c)| k as u64 * c)
-        .sum();
+    let demand_read_cycles = occupancy_integral(&s.dram.outstanding_hist);
     assert_eq!(demand_read_cycles, (226 - 18) + (234 - 100));
     assert_eq!(
         s.dram.demand_reads, 1,
@@ -332,13 +320,7 @@ fn a_late_demand_turns_an_in_flight_prefetch_into_a_demand_miss_down_to_dram() {
     );
     assert_eq!(s.l1d.prefetch_late, 1);
     // L1D demand-miss cycles: A for 226, A + 64 from 100 to 234.
-    let l1_demand: u64 = s
-        .l1d
-        .demand_outstanding_hist
-        .iter()
-        .enumerate()
-        .map(|(k, &c)| k as u64 * c)
-        .sum();
+    let l1_demand = occupancy_integral(&s.l1d.demand_outstanding_hist);
     assert_eq!(l1_demand, 226 + (234 - 100));
     assert_eq!(s.l1d.mlp_cycles, 234);
 }

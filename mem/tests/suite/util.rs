@@ -3,7 +3,7 @@
 
 use overlap_mem::{
     AccessKind, AccessOutcome, CacheConfig, CacheMode, Completion, Cycle, DramConfig, Hierarchy,
-    HierarchyConfig, PrefetchConfig, Refusal, Replacement, Request,
+    HierarchyConfig, PrefetchConfig, PrefetchKind, Refusal, Replacement, Request,
 };
 
 /// A load of `addr` with identifier `id`.
@@ -56,6 +56,20 @@ pub fn with_dram(latency: u32, channels: u32, transfer: u32) -> HierarchyConfig 
         prefetch: PrefetchConfig::default(),
         ..HierarchyConfig::default()
     }
+}
+
+/// The default hierarchy with the L1D in `mode` with `mshrs` registers and a
+/// next-line prefetcher, built.
+pub fn next_line_prefetching(mode: CacheMode, mshrs: u32) -> Hierarchy {
+    let mut cfg = with_l1d(mode, mshrs);
+    cfg.prefetch.kind = PrefetchKind::NextLine;
+    build(&cfg)
+}
+
+/// The time-integral of an occupancy histogram (`hist[k]`: cycles with `k`
+/// outstanding), that is the sum over cycles of the number outstanding.
+pub fn occupancy_integral(hist: &[u64]) -> u64 {
+    hist.iter().enumerate().map(|(k, &c)| k as u64 * c).sum()
 }
 
 pub fn build(cfg: &HierarchyConfig) -> Hierarchy {
