@@ -381,12 +381,14 @@ pub struct PrefetchConfig {
 }
 
 impl Default for PrefetchConfig {
-    /// No prefetcher; degree 1, distance 1, 16 table entries when one is chosen.
+    /// No prefetcher; when one is chosen: 2 lines per trigger, starting 4
+    /// lines (or strides) ahead, so a stream's prefetches can arrive before
+    /// its loads (common practice; a distance of 1 is almost always late).
     fn default() -> Self {
         Self {
             kind: PrefetchKind::None,
-            degree: 1,
-            distance: 1,
+            degree: 2,
+            distance: 4,
             table_entries: 16,
         }
     }

@@ -10,7 +10,8 @@
 //!   of keeps triggering it), name lines `line + distance ..` for `degree`
 //!   lines.
 //! - Stride: a direct-mapped table indexed by the access's PC holds the last
-//!   address, the last stride and a 2-bit confidence. A repeated stride
+//!   address, the last stride and a 2-bit confidence, trained on primary
+//!   misses and on first hits to prefetched lines. A repeated stride
 //!   raises the confidence; from 2 on, name the lines of
 //!   `addr + stride * (distance + i)` for `i` in `0..degree`. A stride
 //!   shorter than a line is stretched to one line in its direction, so a
@@ -97,6 +98,14 @@ impl Prefetcher {
                 }
             }
             PrefetchKind::Stride => {
+                // Train on the accesses that reach for a new line (primary misses, and
+                // first hits on prefetched lines, so a stream it keeps ahead of keeps
+                // training it). Plain hits and merged misses are left out: an
+                // out-of-order core delivers them out of program order, and a
+                // shuffled stride would never gain confidence.
+                if !matches!(trigger, Trigger::Miss | Trigger::PrefetchedHit) {
+                    return;
+                }
                 let idx = ((pc >> 2) % self.table.len() as u64) as usize;
                 let e = &mut self.table[idx];
                 if !e.valid || e.pc != pc {
@@ -197,9 +206,26 @@ mod tests {
         let mut out = Vec::new();
         for i in 0..4u64 {
             out.clear();
-            p.train(0x80, 1000 - 8 * i, Trigger::Hit, &mut out);
+            p.train(0x80, 1000 - 8 * i, Trigger::Miss, &mut out);
         }
         // Walking down by 8 bytes from line 15 (byte 976): lines 14, 13.
         assert_eq!(out, vec![14, 13]);
+    }
+
+    #[test]
+    fn stride_ignores_plain_hits_and_merges() {
+        // An out-of-order core presents hits and merged misses out of program
+        // order; only accesses that reach for a new line train the table.
+        let mut p = pf(PrefetchKind::Stride, 1, 1);
+        let mut out = Vec::new();
+        for i in 0..8u64 {
+            p.train(0x80, i * 256, Trigger::Hit, &mut out);
+            p.train(0x80, i * 256 + 8, Trigger::Merged, &mut out);
+        }
+        assert!(out.is_empty());
+        for i in 0..4u64 {
+            p.train(0x80, i * 256, Trigger::PrefetchedHit, &mut out);
+        }
+        assert_eq!(out, vec![16]);
     }
 }

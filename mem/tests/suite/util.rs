@@ -63,6 +63,9 @@ pub fn with_dram(latency: u32, channels: u32, transfer: u32) -> HierarchyConfig 
 pub fn next_line_prefetching(mode: CacheMode, mshrs: u32) -> Hierarchy {
     let mut cfg = with_l1d(mode, mshrs);
     cfg.prefetch.kind = PrefetchKind::NextLine;
+    // One line, right after the missing one: the worked examples assume it.
+    cfg.prefetch.degree = 1;
+    cfg.prefetch.distance = 1;
     build(&cfg)
 }
 
