@@ -182,7 +182,7 @@ impl Hierarchy {
             c.use_port(now);
             c.counters.accesses += 1;
             c.counters.hits += 1;
-            if c.mshrs.used() > 0 {
+            if c.mshrs.demand() > 0 {
                 c.counters.hits_under_miss += 1;
             }
             c.tags.touch(slot);
@@ -221,14 +221,23 @@ impl Hierarchy {
             });
             m.dirty_on_fill |= store;
             let source = m.source;
-            if m.prefetch && !m.demand {
+            // A demand catching an unused prefetch in flight is that prefetch's first
+            // use: it trains the prefetcher like a first hit on a prefetched line, so a
+            // stream keeps it running even when its prefetches arrive late.
+            let late_prefetch = m.prefetch && !m.demand;
+            if late_prefetch {
                 c.counters.prefetch_late += 1;
             }
             if c.promote(idx, now) {
                 self.promote_below(now, self.below(id), line, id);
             }
             if id == CacheId::L1d {
-                self.train_prefetcher(now, req.pc, req.addr, Trigger::Merged);
+                let trigger = if late_prefetch {
+                    Trigger::PrefetchedHit
+                } else {
+                    Trigger::Merged
+                };
+                self.train_prefetcher(now, req.pc, req.addr, trigger);
             }
             return Ok(Accepted {
                 outcome: AccessOutcome::SecondaryMiss,
@@ -602,7 +611,7 @@ impl Hierarchy {
             c.use_port(t);
             c.counters.accesses += 1;
             c.counters.hits += 1;
-            if c.mshrs.used() > 0 {
+            if c.mshrs.demand() > 0 {
                 c.counters.hits_under_miss += 1;
             }
             c.tags.touch(slot);

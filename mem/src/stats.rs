@@ -99,7 +99,7 @@ pub struct CacheStats {
     pub misses: u64,
     /// Secondary misses (merged into a register already holding the line).
     pub merged: u64,
-    /// Hits served while at least one miss was outstanding.
+    /// Hits served while at least one demand miss was outstanding.
     pub hits_under_miss: u64,
     /// Refusals because a blocking cache was locked up.
     pub refused_locked: u64,
@@ -163,7 +163,7 @@ pub struct DramStats {
     pub busy_cycles: u64,
     /// Bytes transferred per cycle, up to the cycle the statistics were closed.
     pub bandwidth_bytes_per_cycle: f64,
-    /// Sum over reads of (data cycle - arrival cycle).
+    /// Sum over reads of (end of the line's transfer - arrival cycle).
     pub read_latency_total: u64,
     /// Sum over accesses of cycles spent waiting for a busy bank or bus.
     pub queue_cycles_total: u64,

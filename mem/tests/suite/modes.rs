@@ -324,3 +324,21 @@ fn a_late_demand_turns_an_in_flight_prefetch_into_a_demand_miss_down_to_dram() {
     assert_eq!(l1_demand, 226 + (234 - 100));
     assert_eq!(s.l1d.mlp_cycles, 234);
 }
+
+#[test]
+fn a_late_prefetch_still_keeps_the_stream_going() {
+    // Common practice: a demand that catches its prefetch in flight is that
+    // prefetch's first use, so a next-line prefetcher goes on to the following
+    // line; otherwise it would prefetch only every other line of a stream.
+    let mut h = next_line_prefetching(CacheMode::MissUnderMiss, 8);
+    let mut done = Vec::new();
+    for i in 0..200u64 {
+        let t = i * 40;
+        h.advance(t, &mut done);
+        h.access(t, load(i, A + 64 * i)).unwrap();
+    }
+    let (_, end) = drain(&mut h);
+    let s = h.stats(end).l1d;
+    assert_eq!(s.misses, 1, "{s:?}");
+    assert_eq!(s.prefetch_late, 199, "{s:?}");
+}
