@@ -4,18 +4,8 @@
 //! command names and computes a figure the same way.
 
 use indexmap::IndexMap;
-use overlap_core::{Config, Report, Waiting, structure_names};
+use overlap_core::{Config, FIXED_BUCKETS, Report, Waiting, structure_names};
 use serde::{Deserialize, Serialize};
-
-/// The ledger buckets that do not depend on the configuration, in report order.
-pub const FIXED_BUCKETS: [&str; 6] = [
-    "commit",
-    "frontend.mispredict",
-    "frontend.icache",
-    "frontend.other",
-    "latency.memory",
-    "latency.execute",
-];
 
 /// Every bucket a set of configurations can produce, in a stable order: the
 /// fixed ones, then each structure (closest to memory first), then any key

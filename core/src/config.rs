@@ -40,15 +40,24 @@ pub struct Config {
 
 impl Default for Config {
     fn default() -> Self {
+        // The memory side's defaults live next to the memory structures.
+        let HierarchyConfig {
+            l1i,
+            l1d,
+            l2,
+            l3,
+            dram,
+            prefetch,
+        } = HierarchyConfig::default();
         Config {
             core: CoreConfig::default(),
             predictor: PredictorConfig::default(),
-            l1i: None,
-            l1d: CacheConfig::l1d(),
-            l2: CacheConfig::l2(),
-            l3: None,
-            dram: DramConfig::default(),
-            prefetch: PrefetchConfig::default(),
+            l1i,
+            l1d,
+            l2,
+            l3,
+            dram,
+            prefetch,
         }
     }
 }

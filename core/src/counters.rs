@@ -1,9 +1,8 @@
-//! Run counters kept by an observer: retired instructions by class, branch
-//! prediction outcomes, and memory refusals seen by the core.
+//! Run counters kept by an observer: retired instructions by class and branch
+//! prediction outcomes (the caches count their own refusals).
 
 use crate::observer::Observer;
 use overlap_isa::{DynInst, OpClass};
-use overlap_mem::Refusal;
 use serde::{Deserialize, Serialize};
 
 /// Branch prediction figures.
@@ -28,8 +27,6 @@ pub struct Counters {
     pub retired_by_class: [u64; 8],
     /// Branch figures.
     pub branches: Branches,
-    /// L1D refusals seen by loads and stores: locked, MSHRs busy, targets full, ports busy.
-    pub refusals: [u64; 4],
 }
 
 impl Observer for Counters {
@@ -50,15 +47,5 @@ impl Observer for Counters {
 
     fn commit(&mut self, _cycle: u64, _seq: u64, inst: &DynInst) {
         self.retired_by_class[inst.class as usize] += 1;
-    }
-
-    fn refusal(&mut self, _cycle: u64, _seq: u64, why: Refusal) {
-        let i = match why {
-            Refusal::Locked => 0,
-            Refusal::MshrsBusy => 1,
-            Refusal::TargetsFull => 2,
-            Refusal::PortsBusy => 3,
-        };
-        self.refusals[i] += 1;
     }
 }

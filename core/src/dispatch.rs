@@ -11,7 +11,7 @@
 use crate::config::UnitKind;
 use crate::lsq::{LoadEntry, LoadState, StoreEntry};
 use crate::observer::{Observer, StructSet, StructureId};
-use crate::pipeline::{Pipeline, Structure, needs_lsq};
+use crate::pipeline::{Pipeline, Structure};
 use crate::rob::{NOT_YET, RobEntry};
 use crate::stations::StationEntry;
 use overlap_isa::OpClass;
@@ -40,9 +40,9 @@ impl<O: Observer> Pipeline<'_, O> {
                     lacking.insert(Structure::FIRST_STATION + s as StructureId);
                 }
             }
-            match needs_lsq(&d) {
-                Some(OpClass::Load) if self.lq.is_full() => lacking.insert(Structure::LQ),
-                Some(OpClass::Store) if self.sq.ring.is_full() => lacking.insert(Structure::SQ),
+            match d.class {
+                OpClass::Load if self.lq.is_full() => lacking.insert(Structure::LQ),
+                OpClass::Store if self.sq.ring.is_full() => lacking.insert(Structure::SQ),
                 _ => {}
             }
             if d.dst.is_some() && self.rename.free_count() == 0 {

@@ -24,7 +24,9 @@ use crate::observer::{CycleState, FrontState, Observer, StructSet, StructureId, 
 use indexmap::IndexMap;
 use serde::{Deserialize, Serialize};
 
-const FIXED: [&str; 6] = [
+/// The buckets that do not depend on the configuration, in report order
+/// (structure buckets follow them, named by [`crate::structure_names`]).
+pub const FIXED_BUCKETS: [&str; 6] = [
     "commit",
     "frontend.mispredict",
     "frontend.icache",
@@ -67,7 +69,7 @@ impl Ledger {
     /// A ledger for the structures named (by id) in `structures`
     /// (see [`crate::structure_names`]).
     pub fn new(structures: &[String]) -> Ledger {
-        let mut names: Vec<String> = FIXED.iter().map(|s| s.to_string()).collect();
+        let mut names: Vec<String> = FIXED_BUCKETS.iter().map(|s| s.to_string()).collect();
         names.extend(structures.iter().cloned());
         let n = names.len();
         Ledger {
@@ -100,7 +102,7 @@ impl Ledger {
             .iter()
             .min_by_key(|&id| (self.full_since[id as usize], id))
         {
-            FIXED.len() + id as usize
+            FIXED_BUCKETS.len() + id as usize
         } else if s.oldest == Waiting::Empty {
             match s.front {
                 FrontState::Mispredict | FrontState::MispredictRefill => FE_MISPREDICT,
@@ -172,13 +174,11 @@ impl Ledger {
             .names
             .iter()
             .enumerate()
-            .skip(FIXED.len())
+            .skip(FIXED_BUCKETS.len())
             .filter(|(i, _)| self.fill_delay[*i].1 > 0)
             .map(|(i, n)| {
-                (
-                    n.clone(),
-                    self.fill_delay[i].0 as f64 / self.fill_delay[i].1 as f64,
-                )
+                let (sum, count) = self.fill_delay[i];
+                (n.clone(), crate::report::ratio(sum, count))
             })
             .collect();
         LedgerReport {
@@ -186,11 +186,7 @@ impl Ledger {
             waiting,
             episodes: Episodes {
                 count: self.episodes,
-                mean_cycles: if self.episodes == 0 {
-                    0.0
-                } else {
-                    self.episode_cycles as f64 / self.episodes as f64
-                },
+                mean_cycles: crate::report::ratio(self.episode_cycles, self.episodes),
                 max_cycles: self.episode_max,
                 histogram,
                 fill_delay,
@@ -205,7 +201,7 @@ impl Observer for Ledger {
         *self = Ledger {
             full_since: self.full_since.clone(),
             open: self.open,
-            ..Ledger::new(&self.names[FIXED.len()..])
+            ..Ledger::new(&self.names[FIXED_BUCKETS.len()..])
         };
     }
 
@@ -221,8 +217,8 @@ impl Observer for Ledger {
         if self.episode_start.is_none() {
             self.episode_start = Some(first);
         }
-        if bucket >= FIXED.len() {
-            let id = (bucket - FIXED.len()) as StructureId;
+        if bucket >= FIXED_BUCKETS.len() {
+            let id = (bucket - FIXED_BUCKETS.len()) as StructureId;
             if !self.episode_charged.contains(id) {
                 self.episode_charged.insert(id);
                 let start = self.episode_start.expect("open");

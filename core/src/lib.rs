@@ -41,7 +41,7 @@ mod units;
 
 pub use config::{Config, ConfigError, CoreConfig, Disambiguation, PredictorConfig, PredictorKind};
 pub use counters::{Branches, Counters};
-pub use ledger::{Ledger, LedgerReport};
+pub use ledger::{FIXED_BUCKETS, Ledger, LedgerReport};
 pub use observer::{CycleState, NoObserver, Observer, Waiting};
 pub use pipeline::structure_names;
 pub use report::{Host, Mlp, Report, SCHEMA_VERSION, Warmup};
@@ -239,11 +239,7 @@ fn build_report(s: &RunSummary, ledger: LedgerReport, counters: Counters) -> Rep
     }
     let mut branches = counters.branches;
     let wrong = branches.conditional_mispredicts + branches.jump_mispredicts;
-    branches.mpki = if s.instructions == 0 {
-        0.0
-    } else {
-        wrong as f64 * 1000.0 / s.instructions as f64
-    };
+    branches.mpki = report::ratio(wrong * 1000, s.instructions);
     let retired_by_class = overlap_isa::OpClass::ALL
         .iter()
         .map(|c| {
@@ -257,11 +253,7 @@ fn build_report(s: &RunSummary, ledger: LedgerReport, counters: Counters) -> Rep
         schema: SCHEMA_VERSION,
         cycles: s.cycles,
         instructions: s.instructions,
-        ipc: if s.cycles == 0 {
-            0.0
-        } else {
-            s.instructions as f64 / s.cycles as f64
-        },
+        ipc: report::ratio(s.instructions, s.cycles),
         ledger: ledger.ledger,
         waiting: ledger.waiting,
         episodes: ledger.episodes,

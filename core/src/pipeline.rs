@@ -24,8 +24,8 @@ use crate::ring::Ring;
 use crate::rob::{NOT_YET, Rob};
 use crate::stations::{Station, stations_by_class};
 use crate::units::UnitPool;
+use overlap_isa::OpClass;
 use overlap_isa::machine::Machine;
-use overlap_isa::{DynInst, OpClass};
 use overlap_mem::{AccessKind, CacheId, Completion, Hierarchy};
 
 /// Structure ids, in tie-break order (closest to memory first). Stations
@@ -459,13 +459,5 @@ impl<'a, O: Observer> Pipeline<'a, O> {
             front_end: self.front.describe(now),
             outstanding: self.mem.describe_outstanding(),
         }
-    }
-}
-
-/// Whether a dynamic instruction needs a load- or store-queue entry.
-pub(crate) fn needs_lsq(d: &DynInst) -> Option<OpClass> {
-    match d.class {
-        OpClass::Load | OpClass::Store => Some(d.class),
-        _ => None,
     }
 }

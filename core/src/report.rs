@@ -81,6 +81,15 @@ pub struct Host {
     pub mips: f64,
 }
 
+/// `num / den` as a float, 0 when `den` is 0 (an empty run has no rates).
+pub fn ratio(num: u64, den: u64) -> f64 {
+    if den == 0 {
+        0.0
+    } else {
+        num as f64 / den as f64
+    }
+}
+
 impl Report {
     /// The report with host figures zeroed, for comparing runs.
     pub fn without_host(&self) -> Report {
